@@ -1,0 +1,94 @@
+#pragma once
+/// \file lob/core/flight_types.hpp
+/// The aggregates a flight is described by: `shot` (launch), `medium` (gravity, wind),
+/// `state` (a point of the flight), `side` (rising or falling branch).
+
+#include "lob/core/real.hpp"
+#include "lob/core/units.hpp"
+#include "lob/core/vec.hpp"
+
+namespace lob {
+
+/// The launch: position [m] and velocity [m/s] at time 0, in the world frame.
+template <Real T>
+struct shot {
+  vec3<T> position = vec3<T>::Zero();
+  vec3<T> velocity = vec3<T>::Zero();
+};
+
+/// What the body flies through: gravity [m/s^2] and a constant wind [m/s]. "Up" is minus
+/// the direction of gravity; engines with y up pass gravity (0, -g, 0).
+template <Real T>
+struct medium {
+  vec3<T> gravity{T(0), T(0), -standard_gravity<T>()};
+  vec3<T> wind = vec3<T>::Zero();
+};
+
+/// A point of a flight: time since launch [s], position [m], velocity [m/s].
+template <Real T>
+struct state {
+  T time{};
+  vec3<T> position = vec3<T>::Zero();
+  vec3<T> velocity = vec3<T>::Zero();
+};
+
+/// Which branch of the path a height is crossed on.
+enum class side { rising, falling };
+
+/// The unit "up" vector of a medium (minus gravity's direction); gravity must be non-zero.
+template <Real T>
+[[nodiscard]] vec3<T> up(const medium<T>& air) {
+  using std::sqrt;
+  const T g = sqrt(T(air.gravity.squaredNorm()));
+  return vec3<T>(-air.gravity / g);
+}
+
+/// Height of a point: its coordinate along "up", measured from the world origin [m].
+template <Real T>
+[[nodiscard]] T height(const vec3<T>& position, const medium<T>& air) {
+  return T(up(air).dot(position));
+}
+
+/// Speed of a state [m/s].
+template <Real T>
+[[nodiscard]] T speed(const state<T>& s) {
+  using std::sqrt;
+  return sqrt(T(s.velocity.squaredNorm()));
+}
+
+/// The horizontal part of a vector (its component along "up" removed).
+template <Real T>
+[[nodiscard]] vec3<T> horizontal(const vec3<T>& v, const medium<T>& air) {
+  const vec3<T> u = up(air);
+  return vec3<T>(v - T(u.dot(v)) * u);
+}
+
+/// Angle of the path below the horizon [rad]: positive while descending, in [-pi/2, pi/2].
+/// At landing this is the impact angle.
+template <Real T>
+[[nodiscard]] T path_angle_below_horizon(const state<T>& s, const medium<T>& air) {
+  using std::atan2;
+  using std::sqrt;
+  const T vertical = up(air).dot(s.velocity);
+  const T level = sqrt(T(horizontal(s.velocity, air).squaredNorm()));
+  return atan2(-vertical, level);
+}
+
+/// Horizontal distance of a state from the launch point [m]: the range at landing.
+template <Real T>
+[[nodiscard]] T horizontal_distance(const state<T>& s, const shot<T>& launch, const medium<T>& air) {
+  using std::sqrt;
+  return sqrt(T(horizontal(vec3<T>(s.position - launch.position), air).squaredNorm()));
+}
+
+/// A launch velocity from speed [m/s], elevation above the horizon [rad] and azimuth [rad]
+/// measured from +x towards +y, for the default z-up medium.
+template <Real T>
+[[nodiscard]] vec3<T> launch_velocity(const T& speed, const T& elevation, const T& azimuth = T(0)) {
+  using std::cos;
+  using std::sin;
+  return vec3<T>(speed * cos(elevation) * cos(azimuth), speed * cos(elevation) * sin(azimuth),
+                 speed * sin(elevation));
+}
+
+}  // namespace lob

@@ -1,0 +1,32 @@
+#pragma once
+/// \file lob/core/options.hpp
+/// `flight_options`: how a numerically integrated flight is computed. Closed-form models
+/// ignore everything here but `max_time`.
+
+#include <cstdint>
+
+#include "lob/core/real.hpp"
+
+namespace lob {
+
+/// The stepping method of an integrated flight.
+enum class stepper {
+  adaptive,             ///< Dormand–Prince 5(4), error-controlled, dense output
+  rk4,                  ///< classical Runge–Kutta 4, fixed step, bit-for-bit reproducible
+  semi_implicit_euler,  ///< velocity first, then position, fixed step (as engines step)
+};
+
+/// Settings of an integrated flight. Every loop is capped: reaching `max_steps` is
+/// `errc::step_limit`, passing `max_time` without the event is `errc::time_limit`.
+template <Real T>
+struct flight_options {
+  stepper method = stepper::adaptive;
+  T relative_tolerance = T(1) / T(1000000000);  ///< adaptive only, in [1e-15, 1e-2]
+  T absolute_tolerance = T(1) / T(1000000000);  ///< adaptive only, > 0
+  T initial_step = T(0);                        ///< [s]; 0 picks one automatically
+  T fixed_step = T(1) / T(60);                  ///< [s]; fixed-step methods only
+  std::int64_t max_steps = 1000000;             ///< per query
+  T max_time = T(100000);                       ///< [s] of flight time searched for an event
+};
+
+}  // namespace lob

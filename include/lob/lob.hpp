@@ -1,0 +1,18 @@
+#pragma once
+/// \file lob/lob.hpp
+/// Umbrella header: includes every public header of lob. Everything is in namespace `lob`;
+/// `lob::detail` may change at any time; macros start with `LOB_`.
+
+#include "lob/version.hpp"
+#include "lob/core/real.hpp"
+#include "lob/core/vec.hpp"
+#include "lob/core/error.hpp"
+#include "lob/core/result.hpp"
+#include "lob/core/units.hpp"
+#include "lob/core/flight_types.hpp"
+#include "lob/core/options.hpp"
+#include "lob/models/traits.hpp"
+#include "lob/models/vacuum.hpp"
+#include "lob/models/linear_drag.hpp"
+#include "lob/exact/linear_flight.hpp"
+#include "lob/flight.hpp"
