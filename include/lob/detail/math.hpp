@@ -63,6 +63,30 @@ template <Real T>
   return x == T(0) ? T(1) : T(detail::log1p(x) / x);
 }
 
+/// m(x) = -log1pmx(x) / x^2 = (x - log(1 + x)) / x^2, continuous at 0 (value 1/2), x > -1.
+/// The apex height of linear-drag flight is v^2/G * m(k v/G). With y = x/(2 + x),
+/// log(1 + x) = 2 atanh(y) gives m = (1 - y)/2 * (1 - y (1 - y) S(y^2)), S(w) =
+/// sum_j w^j/(2j + 3), whose terms all have one sign for y > 0 and are small for y < 0, so
+/// nothing cancels and x^2 never under- or overflows; used for |y| <= 1/3 (x in
+/// [-1/2, 1]), where S converges at least like 9^-j. Outside, (x - log1p(x))/x^2 loses
+/// at most a few ulps.
+template <Real T>
+[[nodiscard]] T log1pmx_ratio(const T& x) {
+  const T y = x / (T(2) + x);
+  if (T(3) * y > T(1) || T(3) * y < T(-1)) return T((x - detail::log1p(x)) / (x * x));
+  const T eps = epsilon<T>();
+  const T w = y * y;
+  T power = T(1);
+  T sum = T(1) / T(3);
+  for (int j = 1; j < 200; ++j) {  // 9^-j: 200 terms exceed any precision
+    power *= w;
+    const T term = power / T(2 * j + 3);
+    sum += term;
+    if (term <= eps * sum) break;
+  }
+  return T((T(1) - y) / T(2) * (T(1) - y * (T(1) - y) * sum));
+}
+
 /// phi1(z) = (1 - e^-z) / z, continuous at 0 (value 1); z >= 0.
 /// The velocity memory of linear drag: x(t) contains v0 * t * phi1(k t).
 template <Real T>

@@ -6,8 +6,10 @@
 
 #include <cstdint>
 #include <limits>
+#include <utility>
 
 #include <boost/math/special_functions/lambert_w.hpp>
+#include <boost/math/tools/toms748_solve.hpp>
 
 #include "lob/core/flight_types.hpp"
 #include "lob/core/result.hpp"
@@ -86,6 +88,51 @@ class linear_flight {
     return horizontal_distance(*s, launch_, air_);
   }
 
+  /// The height [m] of the apex (absolute, along "up"): the launch height for a shot that
+  /// starts level or downward. Errors as for `apex()`. Computed in closed form,
+  /// h0 + v^2/G * m(x) with m(x) = -log1pmx(x)/x^2 (x = k v/G, G = g - k w), which has no
+  /// cancellation for any k, so it is accurate even where the apex state's height is not.
+  [[nodiscard]] result<T> max_height() const {
+    if (g_ == T(0)) return fail(errc::invalid_argument, "apex needs gravity, got |g| =", g_);
+    if (k_ > T(0) && !(fall_rate() > T(0)))
+      return fail(errc::never_reaches, "no apex: upward wind is at least the fall speed, wind =", w_);
+    if (!(climb0() > T(0))) return h0_;
+    return T(h0_ + apex_rise());
+  }
+
+  /// The first state at which the horizontal distance from the launch point (the length of
+  /// the part of position - launch position across "up"; all three axes when there is no
+  /// gravity) reaches `distance` [m], distance >= 0. In still air the path runs straight
+  /// ahead and d(t) = u t phi1(k t), so t = -log1p(-k d/u)/k, evaluated as
+  /// (d/u) * log1p(-x)/(-x) with x = k d/u (no cancellation as k -> 0; vacuum t = d/u).
+  /// With horizontal wind the distance need not grow monotonically (a shot into the wind
+  /// can be carried back); the first crossing is then found by a capped branch-and-bound
+  /// bisection on bounds that hold on each monotone piece of the along-wind motion.
+  /// Errors: `invalid_argument` for a negative or non-finite distance; `never_reaches` when
+  /// the distance is never reached (no horizontal motion, or still air with drag where the
+  /// distance tends to u/k); `no_convergence` if the capped search gives out.
+  [[nodiscard]] result<state<T>> at_distance(const T& distance) const {
+    if (!is_finite(distance) || distance < T(0))
+      return fail(errc::invalid_argument, "distance must be finite and >= 0", distance);
+    if (distance == T(0)) return state_at(T(0));
+    using std::sqrt;
+    const T wind_speed = sqrt(T(wind_h_.squaredNorm()));
+    if (k_ == T(0) || wind_speed == T(0)) {
+      // k = 0: the ground-frame horizontal velocity is constant (wind plays no part).
+      const T u = k_ == T(0) ? T(sqrt(T(v0_h_.squaredNorm()))) : T(sqrt(T(u0_h_.squaredNorm())));
+      if (!(u > T(0)))
+        return fail(errc::never_reaches, "no horizontal motion, so no distance is reached; asked", distance);
+      if (k_ == T(0)) return state_at(T(distance / u));
+      const T x = k_ * distance / u;
+      if (!(x < T(1)))
+        return fail(errc::never_reaches, "drag stops the body short of that distance; limit u/k =", T(u / k_));
+      return state_at(T(distance / u * detail::log1p_over_x(T(-x))));
+    }
+    const result<T> t = distance_time_in_wind(distance, wind_speed);
+    if (!t) return unexpected<error>(t.error());
+    return state_at(*t);
+  }
+
   [[nodiscard]] const shot<T>& launch() const noexcept { return launch_; }
   [[nodiscard]] const medium<T>& air() const noexcept { return air_; }
   /// The drag rate k [1/s]; 0 in vacuum.
@@ -100,6 +147,109 @@ class linear_flight {
     w_ = up_.dot(air.wind);
     a_ = T(up_.dot(launch.velocity)) - w_;
     h0_ = up_.dot(launch.position);
+    wind_h_ = across(air.wind);
+    v0_h_ = across(launch.velocity);
+    u0_h_ = across(vec3<T>(launch.velocity - air.wind));
+  }
+
+  // The part of a vector across "up" (the whole vector when there is no gravity).
+  [[nodiscard]] vec3<T> across(const vec3<T>& v) const { return vec3<T>(v - T(up_.dot(v)) * up_); }
+
+  // Apex height above the launch, v^2/G * m(x), m(x) = -log1pmx(x)/x^2 (detail::log1pmx_ratio);
+  // needs climb0() > 0 and G > 0 (or k = 0).
+  [[nodiscard]] T apex_rise() const {
+    const T G = fall_rate();
+    const T v = climb0();
+    return T(v * v / G * detail::log1pmx_ratio(T(k_ * v / G)));
+  }
+
+  // Horizontal distance at time t in a horizontal wind, split along the wind (r_par) and
+  // across it (r_perp): r_par = W t + U_par s, r_perp = U_perp s, s = t phi1(k t).
+  struct wind_split {
+    T speed, along, across;
+  };
+  [[nodiscard]] wind_split split(const T& wind_speed) const {
+    using std::sqrt;
+    const T along = T(u0_h_.dot(wind_h_)) / wind_speed;
+    const T across2 = T(u0_h_.squaredNorm()) - along * along;
+    return {wind_speed, along, across2 > T(0) ? T(sqrt(across2)) : T(0)};
+  }
+  [[nodiscard]] T along_distance(const wind_split& w, const T& t) const {
+    return T(w.speed * t + w.along * t * detail::phi1(T(k_ * t)));
+  }
+  [[nodiscard]] T across_distance(const wind_split& w, const T& t) const {
+    return T(w.across * t * detail::phi1(T(k_ * t)));
+  }
+  [[nodiscard]] T distance_at(const wind_split& w, const T& t) const {
+    using std::sqrt;
+    const T p = along_distance(w, t);
+    const T q = across_distance(w, t);
+    return sqrt(T(p * p + q * q));
+  }
+
+  // First time the horizontal distance reaches d > 0 with wind speed W > 0 and k > 0.
+  // r_par' = W + U_par e^{-kt}: when U_par >= -W it never turns negative and the distance
+  // grows monotonically (both parts grow), so TOMS 748 on [0, hi] finds the one crossing.
+  // Otherwise r_par falls until t_a = log(-U_par/W)/k and rises after; on each piece
+  // |r_par| is largest at an end of any sub-interval and |r_perp| grows, so
+  // sqrt(max(r_par(a)^2, r_par(b)^2) + r_perp(b)^2) bounds the distance on [a, b]. A
+  // depth-first, left-first bisection that drops intervals whose bound is below d then
+  // finds the first crossing. hi = (d + |U|/k)/W is past it, since s <= 1/k.
+  [[nodiscard]] result<T> distance_time_in_wind(const T& d, const T& wind_speed) const {
+    using std::abs;
+    using std::log;
+    using std::sqrt;
+    const wind_split w = split(wind_speed);
+    const T hi = T((d + sqrt(T(u0_h_.squaredNorm())) / k_) / wind_speed);
+    const T eps = detail::epsilon<T>();
+    if (w.along >= -wind_speed) {
+      std::uintmax_t iterations = 300;
+      const auto f = [&](const T& t) { return T(distance_at(w, t) - d); };
+      const std::pair<T, T> r = boost::math::tools::toms748_solve(
+          f, T(0), hi, T(-d), T(distance_at(w, hi) - d),
+          boost::math::tools::eps_tolerance<T>(std::numeric_limits<T>::digits - 2), iterations,
+          detail::no_throw_policy{});
+      if (iterations >= 300)
+        return fail(errc::no_convergence, "distance search did not converge, distance", d);
+      return T((r.first + r.second) / 2);
+    }
+    const T t_a = log(T(-w.along / wind_speed)) / k_;
+    struct span {
+      T a, b;
+    };
+    constexpr int depth = 512;
+    span stack[depth];
+    int n = 0;
+    if (t_a < hi) {
+      stack[n++] = span{t_a, hi};
+      stack[n++] = span{T(0), t_a};
+    } else {
+      stack[n++] = span{T(0), hi};
+    }
+    for (int i = 0; i < 100000 && n > 0; ++i) {
+      const span s = stack[--n];
+      const T pa = along_distance(w, s.a);
+      const T pb = along_distance(w, s.b);
+      const T qb = across_distance(w, s.b);
+      const T big = abs(pa) > abs(pb) ? abs(pa) : abs(pb);
+      if (sqrt(T(big * big + qb * qb)) < d) continue;
+      const T da = distance_at(w, s.a);
+      if (da >= d) return s.a;
+      const T db = sqrt(T(pb * pb + qb * qb));
+      if (s.b - s.a <= 4 * eps * s.b) {
+        if (db < d) continue;
+        return T(s.a + (s.b - s.a) * ((d - da) / (db - da)));
+      }
+      const T m = (s.a + s.b) / 2;
+      if (distance_at(w, m) >= d) {
+        stack[n++] = span{s.a, m};
+      } else {
+        if (n + 2 > depth) break;
+        stack[n++] = span{m, s.b};
+        stack[n++] = span{s.a, m};
+      }
+    }
+    return fail(errc::no_convergence, "distance search did not converge, distance", d);
   }
 
   // x(t) = x0 + wind t + u0 t phi1(kt) + g t^2 phi2(kt), u0 = v0 - wind: the solution of
@@ -267,6 +417,9 @@ class linear_flight {
   T w_{};   // vertical wind
   T a_{};   // vertical launch velocity relative to the air
   T h0_{};  // launch height
+  vec3<T> wind_h_;  // wind across "up"
+  vec3<T> v0_h_;    // launch velocity across "up"
+  vec3<T> u0_h_;    // launch velocity relative to the air, across "up"
 };
 
 }  // namespace lob
