@@ -1,0 +1,141 @@
+#pragma once
+/// \file lob/physics/body.hpp
+/// What a user knows about the thing that flies: a `sphere` (mass, diameter) or a general
+/// `body` (mass, reference area, drag coefficient); and the dimensionless numbers of a
+/// flight state, Reynolds and Mach.
+
+#include <boost/math/constants/constants.hpp>
+
+#include "lob/core/flight_types.hpp"
+#include "lob/core/result.hpp"
+#include "lob/physics/air.hpp"
+
+namespace lob {
+
+/// A rigid sphere: mass [kg] and diameter [m], both > 0.
+template <Real T>
+struct sphere {
+  T mass{};
+  T diameter{};
+
+  [[nodiscard]] status check() const {
+    if (!is_finite(mass) || !(mass > T(0)))
+      return fail(errc::invalid_argument, "sphere mass must be finite and > 0 [kg]", mass);
+    if (!is_finite(diameter) || !(diameter > T(0)))
+      return fail(errc::invalid_argument, "sphere diameter must be finite and > 0 [m]", diameter);
+    return {};
+  }
+  /// Frontal (cross-section) area pi d^2 / 4 [m^2].
+  [[nodiscard]] T area() const { return boost::math::constants::pi<T>() * diameter * diameter / T(4); }
+  /// Volume pi d^3 / 6 [m^3].
+  [[nodiscard]] T volume() const {
+    return boost::math::constants::pi<T>() * diameter * diameter * diameter / T(6);
+  }
+};
+
+/// A general body with a known, constant drag coefficient: mass [kg], reference area A
+/// [m^2] (the area the drag coefficient is referred to, usually the frontal area), drag
+/// coefficient Cd (drag force = Cd rho v^2 A / 2), and optionally a reference length [m]
+/// for its Reynolds number (0 means the diameter of the circle of area A) and volume [m^3]
+/// for buoyancy (0 means none).
+template <Real T>
+struct body {
+  T mass{};
+  T reference_area{};
+  T drag_coefficient{};
+  T reference_length{};
+  T volume{};
+
+  [[nodiscard]] status check() const {
+    if (!is_finite(mass) || !(mass > T(0)))
+      return fail(errc::invalid_argument, "body mass must be finite and > 0 [kg]", mass);
+    if (!is_finite(reference_area) || !(reference_area > T(0)))
+      return fail(errc::invalid_argument, "body reference area must be finite and > 0 [m^2]", reference_area);
+    if (!is_finite(drag_coefficient) || !(drag_coefficient > T(0)))
+      return fail(errc::invalid_argument, "body drag coefficient must be finite and > 0", drag_coefficient);
+    if (!is_finite(reference_length) || reference_length < T(0))
+      return fail(errc::invalid_argument, "body reference length must be finite and >= 0 [m]", reference_length);
+    if (!is_finite(volume) || volume < T(0))
+      return fail(errc::invalid_argument, "body volume must be finite and >= 0 [m^3]", volume);
+    return {};
+  }
+  /// The length its Reynolds number uses [m].
+  [[nodiscard]] T length() const {
+    using std::sqrt;
+    if (reference_length > T(0)) return reference_length;
+    return T(sqrt(T(T(4) * reference_area / boost::math::constants::pi<T>())));
+  }
+};
+
+namespace detail {
+template <Real T>
+[[nodiscard]] status check_air(const air_properties<T>& air) {
+  if (!is_finite(air.density) || !(air.density > T(0)))
+    return fail(errc::invalid_argument, "air density must be finite and > 0 [kg/m^3]", air.density);
+  if (!is_finite(air.dynamic_viscosity) || !(air.dynamic_viscosity > T(0)))
+    return fail(errc::invalid_argument, "air viscosity must be finite and > 0 [Pa s]", air.dynamic_viscosity);
+  if (!is_finite(air.speed_of_sound) || !(air.speed_of_sound > T(0)))
+    return fail(errc::invalid_argument, "speed of sound must be finite and > 0 [m/s]", air.speed_of_sound);
+  return {};
+}
+}  // namespace detail
+
+/// Reynolds number rho v L / mu of a body of length `length` [m] moving at `speed` [m/s]
+/// relative to `air`. Errors for a negative or non-finite speed or length, or bad air.
+template <Real T>
+[[nodiscard]] result<T> reynolds_number(const T& speed, const T& length, const air_properties<T>& air) {
+  if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(speed) || speed < T(0))
+    return fail(errc::invalid_argument, "speed must be finite and >= 0 [m/s]", speed);
+  if (!is_finite(length) || !(length > T(0)))
+    return fail(errc::invalid_argument, "length must be finite and > 0 [m]", length);
+  return T(air.density * speed * length / air.dynamic_viscosity);
+}
+
+/// Mach number v / a of `speed` [m/s] in `air`.
+template <Real T>
+[[nodiscard]] result<T> mach_number(const T& speed, const air_properties<T>& air) {
+  if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(speed) || speed < T(0))
+    return fail(errc::invalid_argument, "speed must be finite and >= 0 [m/s]", speed);
+  return T(speed / air.speed_of_sound);
+}
+
+/// The flow numbers of one flight state.
+template <Real T>
+struct flow_numbers {
+  T air_speed{};  ///< |v - wind| [m/s]
+  T reynolds{};
+  T mach{};
+};
+
+/// Reynolds and Mach numbers of a sphere in flight state `s`, flying through `air` with the
+/// wind of `where` (the speed relative to the air counts).
+template <Real T>
+[[nodiscard]] result<flow_numbers<T>> flow_at(const sphere<T>& ball, const state<T>& s,
+                                              const medium<T>& where, const air_properties<T>& air) {
+  using std::sqrt;
+  if (const status ok = ball.check(); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(s.velocity) || !is_finite(where.wind))
+    return fail(errc::invalid_argument, "velocity and wind must be finite");
+  const T v = sqrt(T(vec3<T>(s.velocity - where.wind).squaredNorm()));
+  const result<T> re = reynolds_number(v, ball.diameter, air);
+  if (!re) return unexpected<error>(re.error());
+  return flow_numbers<T>{v, *re, T(v / air.speed_of_sound)};
+}
+
+/// As above for a general body, using its `length()`.
+template <Real T>
+[[nodiscard]] result<flow_numbers<T>> flow_at(const body<T>& thing, const state<T>& s,
+                                              const medium<T>& where, const air_properties<T>& air) {
+  using std::sqrt;
+  if (const status ok = thing.check(); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(s.velocity) || !is_finite(where.wind))
+    return fail(errc::invalid_argument, "velocity and wind must be finite");
+  const T v = sqrt(T(vec3<T>(s.velocity - where.wind).squaredNorm()));
+  const result<T> re = reynolds_number(v, thing.length(), air);
+  if (!re) return unexpected<error>(re.error());
+  return flow_numbers<T>{v, *re, T(v / air.speed_of_sound)};
+}
+
+}  // namespace lob
