@@ -16,3 +16,8 @@
 #include "lob/models/linear_drag.hpp"
 #include "lob/exact/linear_flight.hpp"
 #include "lob/flight.hpp"
+#include "lob/physics/air.hpp"
+#include "lob/physics/atmosphere.hpp"
+#include "lob/physics/body.hpp"
+#include "lob/physics/sphere_drag.hpp"
+#include "lob/physics/terminal_speed.hpp"
