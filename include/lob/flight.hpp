@@ -7,7 +7,10 @@
 #include "lob/core/options.hpp"
 #include "lob/core/result.hpp"
 #include "lob/exact/linear_flight.hpp"
+#include "lob/integrate/integrated_flight.hpp"
 #include "lob/models/linear_drag.hpp"
+#include "lob/models/linear_quadratic_drag.hpp"
+#include "lob/models/quadratic_drag.hpp"
 #include "lob/models/traits.hpp"
 #include "lob/models/vacuum.hpp"
 
@@ -16,7 +19,9 @@ namespace lob {
 /// Flies `model` through `air` from `launch`. Returns a trajectory value whose queries
 /// (`at`, `apex`, `crossing`, `landing`, `range`) are `const` and allocation-free.
 /// Closed-form models (vacuum, linear drag) give a `linear_flight<T>`; `options` only
-/// matter for integrated models.
+/// matter for integrated models. Every other model (quadratic_drag, linear_quadratic_drag,
+/// any user type satisfying `DragModel`) gives a `result<integrated_flight<M>>` with the
+/// same queries plus `sample()` (lob/integrate/integrated_flight.hpp).
 template <DragModel M>
 [[nodiscard]] auto fly(const M& model, const medium<scalar_of<M>>& air,
                        const shot<scalar_of<M>>& launch,
@@ -29,7 +34,7 @@ template <DragModel M>
     if (!ok) return result<trajectory>(unexpected<error>(ok.error()));
     return trajectory::make(model_traits<M>::linear_rate(model), air, launch);
   } else {
-    static_assert(model_traits<M>::closed_form, "integrated flight: see lob/integrate/");
+    return integrated_flight<M>::make(model, air, launch, options);
   }
 }
 

@@ -21,3 +21,8 @@
 #include "lob/physics/body.hpp"
 #include "lob/physics/sphere_drag.hpp"
 #include "lob/physics/terminal_speed.hpp"
+#include "lob/models/quadratic_drag.hpp"
+#include "lob/models/linear_quadratic_drag.hpp"
+#include "lob/integrate/dormand_prince.hpp"
+#include "lob/integrate/fixed_step.hpp"
+#include "lob/integrate/integrated_flight.hpp"

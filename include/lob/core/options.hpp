@@ -27,6 +27,9 @@ struct flight_options {
   T fixed_step = T(1) / T(60);                  ///< [s]; fixed-step methods only
   std::int64_t max_steps = 1000000;             ///< per query
   T max_time = T(100000);                       ///< [s] of flight time searched for an event
+  /// Let models with a special method use it (quadratic drag in still air: the hodograph
+  /// quadrature) for apex, crossings, landing and range; false forces the integration.
+  bool use_fast_paths = true;
 };
 
 }  // namespace lob

@@ -1,0 +1,224 @@
+#pragma once
+/// \file lob/integrate/dormand_prince.hpp
+/// The Dormand–Prince 5(4) pair with first-same-as-last, its error norm, a
+/// proportional–integral step-size controller and its continuous extension (dense
+/// output). Internal building blocks of `integrated_flight`; all state lives on the stack.
+
+#include <algorithm>
+
+#include "lob/core/real.hpp"
+#include "lob/core/vec.hpp"
+
+namespace lob::detail {
+
+/// The phase of a body: position [m] and velocity [m/s]. Its time derivative is a phase
+/// too: (velocity, acceleration).
+template <Real T>
+struct phase {
+  vec3<T> position = vec3<T>::Zero();
+  vec3<T> velocity = vec3<T>::Zero();
+};
+
+/// The stages of one Dormand–Prince step that the dense output needs (k2 is not used by
+/// it). k7 is f(y1): first-same-as-last, it is the next step's k1.
+template <Real T>
+struct dp5_stages {
+  phase<T> k1, k3, k4, k5, k6, k7;
+};
+
+// Scaled root-mean-square norm of an error estimate, as in Hairer, Norsett & Wanner,
+// "Solving Ordinary Differential Equations I", 2nd ed. (1993), eq. II.4.11: each
+// component is divided by atol + rtol * max(|y0_i|, |y1_i|).
+template <Real T>
+[[nodiscard]] T scaled_rms(const phase<T>& err, const phase<T>& y0, const phase<T>& y1, const T& rtol,
+                           const T& atol) {
+  using std::abs;
+  using std::max;
+  using std::sqrt;
+  T sum(0);
+  for (int i = 0; i < 3; ++i) {
+    const T sp = atol + rtol * max(T(abs(y0.position[i])), T(abs(y1.position[i])));
+    const T sv = atol + rtol * max(T(abs(y0.velocity[i])), T(abs(y1.velocity[i])));
+    const T ep = err.position[i] / sp;
+    const T ev = err.velocity[i] / sv;
+    sum += ep * ep + ev * ev;
+  }
+  return sqrt(T(sum / 6));
+}
+
+/// One Dormand–Prince 5(4) step of size `h` from `y0` with k1 = f(y0) given.
+/// Tableau: J. R. Dormand & P. J. Prince, "A family of embedded Runge-Kutta formulae",
+/// J. Comput. Appl. Math. 6 (1980) 19-26 (table 2, the 5th-order solution is propagated).
+/// Writes the new phase to `y1`, the stages to `k` (k.k7 = f(y1)) and returns the scaled
+/// error norm of the embedded 4th-order difference (accept when <= 1).
+template <Real T, class Rhs>
+[[nodiscard]] T dp5_step(const Rhs& rhs, const phase<T>& y0, const phase<T>& k1, const T& h, phase<T>& y1,
+                         dp5_stages<T>& k, const T& rtol, const T& atol) {
+  // Coefficients built from integers so that every type gets all its digits.
+  const T a21 = T(1) / T(5);
+  const T a31 = T(3) / T(40), a32 = T(9) / T(40);
+  const T a41 = T(44) / T(45), a42 = T(-56) / T(15), a43 = T(32) / T(9);
+  const T a51 = T(19372) / T(6561), a52 = T(-25360) / T(2187), a53 = T(64448) / T(6561),
+          a54 = T(-212) / T(729);
+  const T a61 = T(9017) / T(3168), a62 = T(-355) / T(33), a63 = T(46732) / T(5247),
+          a64 = T(49) / T(176), a65 = T(-5103) / T(18656);
+  const T b1 = T(35) / T(384), b3 = T(500) / T(1113), b4 = T(125) / T(192), b5 = T(-2187) / T(6784),
+          b6 = T(11) / T(84);
+  // e = b - b_hat (5th minus 4th order weights).
+  const T e1 = T(71) / T(57600), e3 = T(-71) / T(16695), e4 = T(71) / T(1920),
+          e5 = T(-17253) / T(339200), e6 = T(22) / T(525), e7 = T(-1) / T(40);
+
+  k.k1 = k1;
+  phase<T> y;
+  y.position = y0.position + h * (a21 * k1.position);
+  y.velocity = y0.velocity + h * (a21 * k1.velocity);
+  const phase<T> k2 = rhs(y);
+  y.position = y0.position + h * (a31 * k1.position + a32 * k2.position);
+  y.velocity = y0.velocity + h * (a31 * k1.velocity + a32 * k2.velocity);
+  k.k3 = rhs(y);
+  y.position = y0.position + h * (a41 * k1.position + a42 * k2.position + a43 * k.k3.position);
+  y.velocity = y0.velocity + h * (a41 * k1.velocity + a42 * k2.velocity + a43 * k.k3.velocity);
+  k.k4 = rhs(y);
+  y.position = y0.position + h * (a51 * k1.position + a52 * k2.position + a53 * k.k3.position +
+                                  a54 * k.k4.position);
+  y.velocity = y0.velocity + h * (a51 * k1.velocity + a52 * k2.velocity + a53 * k.k3.velocity +
+                                  a54 * k.k4.velocity);
+  k.k5 = rhs(y);
+  y.position = y0.position + h * (a61 * k1.position + a62 * k2.position + a63 * k.k3.position +
+                                  a64 * k.k4.position + a65 * k.k5.position);
+  y.velocity = y0.velocity + h * (a61 * k1.velocity + a62 * k2.velocity + a63 * k.k3.velocity +
+                                  a64 * k.k4.velocity + a65 * k.k5.velocity);
+  k.k6 = rhs(y);
+  y1.position = y0.position + h * (b1 * k1.position + b3 * k.k3.position + b4 * k.k4.position +
+                                   b5 * k.k5.position + b6 * k.k6.position);
+  y1.velocity = y0.velocity + h * (b1 * k1.velocity + b3 * k.k3.velocity + b4 * k.k4.velocity +
+                                   b5 * k.k5.velocity + b6 * k.k6.velocity);
+  k.k7 = rhs(y1);
+  phase<T> err;
+  err.position = h * (e1 * k1.position + e3 * k.k3.position + e4 * k.k4.position + e5 * k.k5.position +
+                      e6 * k.k6.position + e7 * k.k7.position);
+  err.velocity = h * (e1 * k1.velocity + e3 * k.k3.velocity + e4 * k.k4.velocity + e5 * k.k5.velocity +
+                      e6 * k.k6.velocity + e7 * k.k7.velocity);
+  return scaled_rms(err, y0, y1, rtol, atol);
+}
+
+/// The continuous extension of one Dormand–Prince step: a polynomial of degree 4 in
+/// theta = (t - t0) / h that matches y0 and y1 and their derivatives, with local error of
+/// order 5 (Hairer, Norsett & Wanner, "Solving ODEs I", sec. II.6, the dense output of
+/// DOPRI5, coefficients d_i due to Shampine). Built only for a step that an event or a
+/// requested time falls in.
+template <Real T>
+class dp5_dense {
+ public:
+  dp5_dense(const T& t0, const T& h, const phase<T>& y0, const phase<T>& y1, const dp5_stages<T>& k)
+      : t0_(t0), h_(h), y0_(y0) {
+    const T d1 = T(-12715105075LL) / T(11282082432LL), d3 = T(87487479700LL) / T(32700410799LL),
+            d4 = T(-10690763975LL) / T(1880347072LL), d5 = T(701980252875LL) / T(199316789632LL),
+            d6 = T(-1453857185LL) / T(822651844LL), d7 = T(69997945LL) / T(29380423LL);
+    diff_.position = y1.position - y0.position;
+    diff_.velocity = y1.velocity - y0.velocity;
+    bspl_.position = h * k.k1.position - diff_.position;
+    bspl_.velocity = h * k.k1.velocity - diff_.velocity;
+    r4_.position = diff_.position - h * k.k7.position - bspl_.position;
+    r4_.velocity = diff_.velocity - h * k.k7.velocity - bspl_.velocity;
+    r5_.position = h * (d1 * k.k1.position + d3 * k.k3.position + d4 * k.k4.position +
+                        d5 * k.k5.position + d6 * k.k6.position + d7 * k.k7.position);
+    r5_.velocity = h * (d1 * k.k1.velocity + d3 * k.k3.velocity + d4 * k.k4.velocity +
+                        d5 * k.k5.velocity + d6 * k.k6.velocity + d7 * k.k7.velocity);
+  }
+
+  /// The interpolated phase at time `t` in [t0, t0 + h].
+  [[nodiscard]] phase<T> operator()(const T& t) const {
+    const T th = (t - t0_) / h_;
+    const T th1 = T(1) - th;
+    phase<T> y;
+    y.position = y0_.position +
+                 th * (diff_.position + th1 * (bspl_.position + th * (r4_.position + th1 * r5_.position)));
+    y.velocity = y0_.velocity +
+                 th * (diff_.velocity + th1 * (bspl_.velocity + th * (r4_.velocity + th1 * r5_.velocity)));
+    return y;
+  }
+
+ private:
+  T t0_;
+  T h_;
+  phase<T> y0_, diff_, bspl_, r4_, r5_;
+};
+
+/// Proportional–integral step-size control (Gustafsson's controller in the form of
+/// Hairer, Norsett & Wanner, "Solving ODEs I", sec. IV.2 and the DOPRI5 code):
+/// h_new = h * safety * err^-(1/5 - 0.75 beta) * err_old^beta, beta = 0.04, the factor
+/// kept in [1/5, 10] (and <= 1 right after a rejection).
+template <Real T>
+class pi_controller {
+ public:
+  /// The next step size after a step of size `h` with error norm `err`.
+  [[nodiscard]] T next(const T& h, const T& err, bool accepted) {
+    using std::max;
+    using std::min;
+    using std::pow;
+    const T beta = T(4) / T(100);
+    const T alpha = T(1) / T(5) - T(3) / T(4) * beta;
+    const T safety = T(9) / T(10);
+    const T e = max(err, T(1) / T(1000000000));
+    T factor;
+    if (accepted) {
+      factor = safety * T(pow(e, T(-alpha))) * T(pow(err_old_, beta));
+      factor = min(T(10), max(T(1) / T(5), factor));
+      if (rejected_) factor = min(factor, T(1));
+      err_old_ = max(err, T(1) / T(10000));
+      rejected_ = false;
+    } else {
+      factor = max(T(1) / T(5), T(safety * T(pow(e, T(-1) / T(5)))));
+      rejected_ = true;
+    }
+    return T(h * factor);
+  }
+
+ private:
+  T err_old_ = T(1) / T(10000);
+  bool rejected_ = false;
+};
+
+/// Hairer's starting step (Hairer, Norsett & Wanner, "Solving ODEs I", sec. II.4,
+/// "Starting step size"): an explicit Euler probe estimates the second derivative, and
+/// the step makes the local error of a 5th-order method about the tolerance. Costs one
+/// evaluation of f. Never more than `h_max`.
+template <Real T, class Rhs>
+[[nodiscard]] T dp5_initial_step(const Rhs& rhs, const phase<T>& y0, const phase<T>& f0, const T& rtol,
+                                 const T& atol, const T& h_max) {
+  using std::abs;
+  using std::max;
+  using std::min;
+  using std::pow;
+  using std::sqrt;
+  T dnf(0), dny(0);
+  for (int i = 0; i < 3; ++i) {
+    const T sp = atol + rtol * T(abs(y0.position[i]));
+    const T sv = atol + rtol * T(abs(y0.velocity[i]));
+    dnf += T(f0.position[i] / sp) * T(f0.position[i] / sp) + T(f0.velocity[i] / sv) * T(f0.velocity[i] / sv);
+    dny += T(y0.position[i] / sp) * T(y0.position[i] / sp) + T(y0.velocity[i] / sv) * T(y0.velocity[i] / sv);
+  }
+  const T tiny = T(1) / T(10000000000LL);
+  T h = (dnf <= tiny || dny <= tiny) ? T(T(1) / T(1000000)) : T(sqrt(T(dny / dnf)) / T(100));
+  h = min(h, h_max);
+  phase<T> y1;
+  y1.position = y0.position + h * f0.position;
+  y1.velocity = y0.velocity + h * f0.velocity;
+  const phase<T> f1 = rhs(y1);
+  T der2(0);
+  for (int i = 0; i < 3; ++i) {
+    const T sp = atol + rtol * T(abs(y0.position[i]));
+    const T sv = atol + rtol * T(abs(y0.velocity[i]));
+    const T dp = (f1.position[i] - f0.position[i]) / sp;
+    const T dv = (f1.velocity[i] - f0.velocity[i]) / sv;
+    der2 += dp * dp + dv * dv;
+  }
+  der2 = sqrt(der2) / h;
+  const T der12 = max(der2, T(sqrt(dnf)));
+  const T h1 = der12 <= T(1) / T(1000000000000000LL) ? max(T(T(1) / T(1000000)), T(h / T(1000)))
+                                                      : T(pow(T(T(1) / T(100) / der12), T(1) / T(5)));
+  return min(T(min(T(100 * h), h1)), h_max);
+}
+
+}  // namespace lob::detail

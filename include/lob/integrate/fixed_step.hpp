@@ -1,0 +1,77 @@
+#pragma once
+/// \file lob/integrate/fixed_step.hpp
+/// Fixed-step methods for deterministic flight (classical Runge–Kutta 4 and semi-implicit
+/// Euler) and the cubic Hermite interpolant that events are located on between steps.
+/// Internal building blocks of `integrated_flight`.
+
+#include "lob/integrate/dormand_prince.hpp"
+
+namespace lob::detail {
+
+/// One classical Runge–Kutta step (Kutta 1901; order 4) of size `h` from `y0` with
+/// k1 = f(y0) given. The operations are always the same and in the same order, so a run
+/// is reproducible bit for bit on one build.
+template <Real T, class Rhs>
+[[nodiscard]] phase<T> rk4_step(const Rhs& rhs, const phase<T>& y0, const phase<T>& k1, const T& h) {
+  const T half = h / T(2);
+  phase<T> y;
+  y.position = y0.position + half * k1.position;
+  y.velocity = y0.velocity + half * k1.velocity;
+  const phase<T> k2 = rhs(y);
+  y.position = y0.position + half * k2.position;
+  y.velocity = y0.velocity + half * k2.velocity;
+  const phase<T> k3 = rhs(y);
+  y.position = y0.position + h * k3.position;
+  y.velocity = y0.velocity + h * k3.velocity;
+  const phase<T> k4 = rhs(y);
+  const T sixth = h / T(6);
+  phase<T> y1;
+  y1.position = y0.position + sixth * (k1.position + T(2) * k2.position + T(2) * k3.position + k4.position);
+  y1.velocity = y0.velocity + sixth * (k1.velocity + T(2) * k2.velocity + T(2) * k3.velocity + k4.velocity);
+  return y1;
+}
+
+/// One semi-implicit (symplectic) Euler step as game engines take it: the velocity first
+/// from the acceleration at the start, then the position with the new velocity. `f0` is
+/// f(y0); order 1.
+template <Real T>
+[[nodiscard]] phase<T> semi_implicit_euler_step(const phase<T>& y0, const phase<T>& f0, const T& h) {
+  phase<T> y1;
+  y1.velocity = y0.velocity + h * f0.velocity;
+  y1.position = y0.position + h * y1.velocity;
+  return y1;
+}
+
+/// The cubic Hermite interpolant of a step from (t0, y0, f0) to (t0 + h, y1, f1): for the
+/// position with the velocities as slopes, for the velocity with the accelerations as
+/// slopes. Locating an event on it keeps third-order accuracy between steps, where a
+/// straight line between the step ends would be only second order.
+template <Real T>
+class hermite_piece {
+ public:
+  hermite_piece(const T& t0, const T& h, const phase<T>& y0, const phase<T>& f0, const phase<T>& y1,
+                const phase<T>& f1)
+      : t0_(t0), h_(h), y0_(y0), f0_(f0), y1_(y1), f1_(f1) {}
+
+  [[nodiscard]] phase<T> operator()(const T& t) const {
+    const T s = (t - t0_) / h_;
+    const T s2 = s * s;
+    const T s3 = s2 * s;
+    // The four cubic Hermite basis polynomials on [0, 1].
+    const T h00 = T(2) * s3 - T(3) * s2 + T(1);
+    const T h10 = s3 - T(2) * s2 + s;
+    const T h01 = T(-2) * s3 + T(3) * s2;
+    const T h11 = s3 - s2;
+    phase<T> y;
+    y.position = h00 * y0_.position + (h10 * h_) * f0_.position + h01 * y1_.position + (h11 * h_) * f1_.position;
+    y.velocity = h00 * y0_.velocity + (h10 * h_) * f0_.velocity + h01 * y1_.velocity + (h11 * h_) * f1_.velocity;
+    return y;
+  }
+
+ private:
+  T t0_;
+  T h_;
+  phase<T> y0_, f0_, y1_, f1_;
+};
+
+}  // namespace lob::detail

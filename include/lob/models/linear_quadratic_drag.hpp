@@ -1,0 +1,102 @@
+#pragma once
+/// \file lob/models/linear_quadratic_drag.hpp
+/// `linear_quadratic_drag`: the sum of a linear and a quadratic drag,
+/// a = -(k + c |v_air|) v_air, the usual way to span the Stokes (slow, small) and Newton
+/// (fast, large) regimes with one model. Integrated by lob::fly().
+
+#include <boost/math/constants/constants.hpp>
+
+#include "lob/core/result.hpp"
+#include "lob/core/units.hpp"
+#include <limits>
+
+#include "lob/models/traits.hpp"
+
+namespace lob {
+
+/// Linear plus quadratic drag: `rate` k [1/s] >= 0 and `coefficient` c [1/m] >= 0,
+/// a_drag = -(k + c |v_air|) v_air. With c = 0 it is `linear_drag`, with k = 0
+/// `quadratic_drag`. Example: `lob::linear_quadratic_drag<double>{.rate = 0.05, .coefficient = 0.004}`.
+template <Real T>
+struct linear_quadratic_drag {
+  T rate{};
+  T coefficient{};
+
+  /// Drag acceleration [m/s^2] for the velocity relative to the air `v_air` [m/s].
+  [[nodiscard]] vec3<T> acceleration(const vec3<T>& v_air) const {
+    using std::sqrt;
+    const T speed = sqrt(T(v_air.squaredNorm()));
+    return vec3<T>(-(rate + coefficient * speed) * v_air);
+  }
+
+  /// `invalid_argument` unless both parts are finite and >= 0.
+  [[nodiscard]] status check() const {
+    if (!is_finite(rate)) return fail(errc::invalid_argument, "linear drag rate must be finite", rate);
+    if (rate < T(0)) return fail(errc::invalid_argument, "linear drag rate must be >= 0", rate);
+    if (!is_finite(coefficient))
+      return fail(errc::invalid_argument, "quadratic drag coefficient must be finite", coefficient);
+    if (coefficient < T(0))
+      return fail(errc::invalid_argument, "quadratic drag coefficient must be >= 0", coefficient);
+    return {};
+  }
+
+  /// Terminal speed in still air [m/s] under gravity `g`: the positive root of
+  /// c v^2 + k v = g, written 2 g / (k + sqrt(k^2 + 4 c g)) so that c -> 0 gives g / k
+  /// without cancellation; infinite without drag.
+  [[nodiscard]] T terminal_speed(const T& g = standard_gravity<T>()) const {
+    using std::sqrt;
+    const T root = sqrt(T(rate * rate + 4 * coefficient * g));
+    const T den = rate + root;
+    if (!(den > T(0))) return std::numeric_limits<T>::infinity();
+    return T(2 * g / den);
+  }
+
+  /// The model of a sphere of `mass` [kg] and `diameter` [m] in air of `dynamic_viscosity`
+  /// [Pa s] and `air_density` [kg/m^3]: the linear part is Stokes' law, F = 3 pi mu d v
+  /// (exact for Reynolds numbers well below 1), the quadratic part the drag equation with
+  /// `newton_drag_coefficient` C_d (about 0.4 to 0.5 for a smooth sphere at Reynolds
+  /// numbers 1e3 .. 2e5, common practice) on the frontal area pi d^2 / 4.
+  [[nodiscard]] static result<linear_quadratic_drag> from_sphere(const T& mass, const T& diameter,
+                                                                 const T& dynamic_viscosity,
+                                                                 const T& air_density,
+                                                                 const T& newton_drag_coefficient) {
+    const T pi = boost::math::constants::pi<T>();
+    if (!is_finite(mass) || !(mass > T(0)))
+      return fail(errc::invalid_argument, "mass must be finite and > 0", mass);
+    if (!is_finite(diameter) || diameter < T(0))
+      return fail(errc::invalid_argument, "diameter must be finite and >= 0", diameter);
+    if (!is_finite(dynamic_viscosity) || dynamic_viscosity < T(0))
+      return fail(errc::invalid_argument, "dynamic viscosity must be finite and >= 0", dynamic_viscosity);
+    if (!is_finite(air_density) || air_density < T(0))
+      return fail(errc::invalid_argument, "air density must be finite and >= 0", air_density);
+    if (!is_finite(newton_drag_coefficient) || newton_drag_coefficient < T(0))
+      return fail(errc::invalid_argument, "drag coefficient must be finite and >= 0",
+                  newton_drag_coefficient);
+    const T area = pi * diameter * diameter / 4;
+    return linear_quadratic_drag{T(3 * pi * dynamic_viscosity * diameter / mass),
+                                 T(air_density * newton_drag_coefficient * area / (2 * mass))};
+  }
+
+  /// The model from the two force coefficients of F = b v + q v^2 on a body of `mass` [kg]:
+  /// `linear_force` b [N s/m] and `quadratic_force` q [N s^2/m^2]; k = b / m, c = q / m.
+  [[nodiscard]] static result<linear_quadratic_drag> from_forces(const T& mass, const T& linear_force,
+                                                                 const T& quadratic_force) {
+    if (!is_finite(mass) || !(mass > T(0)))
+      return fail(errc::invalid_argument, "mass must be finite and > 0", mass);
+    if (!is_finite(linear_force) || linear_force < T(0))
+      return fail(errc::invalid_argument, "linear force coefficient must be finite and >= 0", linear_force);
+    if (!is_finite(quadratic_force) || quadratic_force < T(0))
+      return fail(errc::invalid_argument, "quadratic force coefficient must be finite and >= 0",
+                  quadratic_force);
+    return linear_quadratic_drag{T(linear_force / mass), T(quadratic_force / mass)};
+  }
+};
+
+template <Real T>
+struct model_traits<linear_quadratic_drag<T>> {
+  using scalar = T;
+  static constexpr bool closed_form = false;
+  static constexpr bool quadratic_fast_path = false;
+};
+
+}  // namespace lob
