@@ -126,11 +126,9 @@ class hodograph_path {
     kappa_ = c * v0 * v0 / g;
     kc_ = kappa_ * cos0 * cos0;
     u0_ = v0 * cos0;
-    const T eps = epsilon<T>();
-    // dy/dtau grows like 1/c per unit tau; beyond this e^(2 tau) would overflow T.
-    using std::log;
+    // The descent gains about 1/c of depth per unit of tau; beyond this bound e^(2 tau)
+    // would overflow T (float: tau < 40, about 40 / c metres below the apex).
     tau_max_ = T(log(boost::math::tools::max_value<T>()) * T(9) / T(20));
-    (void)eps;
   }
 
   [[nodiscard]] const T& sigma0() const { return sigma0_; }
@@ -263,13 +261,17 @@ class hodograph_path {
       if (f < T(0)) lo = tau;
       else hi = tau;
       const T slope = T(dir) * rise_rate(tau);
-      T next = slope > T(0) ? T(tau - f / slope) : T((lo + hi) / 2);
-      if (std::getenv("HDBG")) std::printf("  raw next %.25Lg  %d %d\n", (long double)next, int(next > lo), int(next < hi));
-      if (!(next > lo && next < hi)) next = (lo + hi) / 2;
-      s += integral(tau, next); if (std::getenv("HDBG")) std::printf("it %d tau %.20Lg f %.5Lg slope %.5Lg lo %.20Lg hi %.20Lg next %.25Lg\n", i, (long double)tau, (long double)f, (long double)slope, (long double)lo, (long double)hi, (long double)next);
-      const T step = abs(T(next - tau));
+      T next = (lo + hi) / 2;
+      if (slope > T(0)) {
+        const T delta = f / slope;
+        // Newton's next step would change tau by no more than rounding: converged.
+        if (abs(delta) <= 2 * eps * tau) return finish(tau, s, rise);
+        const T newton = tau - delta;
+        if (newton > lo && newton < hi) next = newton;
+      }
+      if (!(hi - lo > 2 * eps * tau)) return finish(tau, s, rise);
+      s += integral(tau, next);
       tau = next;
-      if (step <= 2 * eps * tau || !(hi - lo > 2 * eps * tau)) return finish(tau, s, rise);
     }
     return fail(errc::no_convergence, "height crossing did not converge, at tau =", tau);
   }
