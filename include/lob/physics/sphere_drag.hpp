@@ -4,12 +4,20 @@
 /// correlations, each with its range and accuracy; and the Stokes drag rate of a small
 /// sphere from the viscosity of the air.
 ///
-/// Which correlation: `morrison_2013` is the only one here that spans the whole range from
-/// creeping flow to Re = 1e6, drag crisis included; `clift_gauvin_1970` and
-/// `brown_lawler_2003` are more accurate below the crisis; `schiller_naumann_1933` is the
-/// classic for Re below 800. In the crisis itself (Re about 2e5..5e5) the real drag
-/// depends on surface roughness and free-stream turbulence, and no correlation of Re alone
-/// is better than a factor of about 1.5 there (common practice).
+/// Which correlation: `clift_gauvin_1970` (the default) is the most accurate here up to
+/// Re = 3e5, within 7% of the standard drag curve; `morrison_2013` is the only one that
+/// spans the whole range from creeping flow to Re = 1e6, drag crisis included, at 17%
+/// below the crisis; `schiller_naumann_1933` is the classic for Re below 800.
+/// In the crisis itself (Re about 2e5..5e5) the real drag depends on surface roughness and
+/// free-stream turbulence, and no correlation of Re alone is better than a factor of about
+/// 1.5 there (common practice).
+///
+/// Accuracy figures (`info(c).accuracy`) are the largest relative deviation from the
+/// standard drag curve of Clift, Grace & Weber ("Bubbles, Drops, and Particles", Academic
+/// Press 1978, Table 5.2, a piecewise fit to the measurements; from memory) over each
+/// correlation's range, up to Re = 2e5 for Morrison, as measured in
+/// tests/physics/sphere_drag_test.cpp: they are what each formula achieves, not a claim
+/// copied from its source.
 
 #include <string_view>
 
@@ -22,32 +30,30 @@ namespace lob {
 
 /// A drag correlation for a smooth sphere, Cd(Re), Re = rho v d / mu.
 enum class sphere_correlation {
-  /// Stokes (1851), Cd = 24 / Re: creeping flow, Re <= 0.1; below 2% error there, since
-  /// Oseen's first correction is 3 Re / 16 (common practice).
+  /// Stokes (1851), Cd = 24 / Re: creeping flow, Re <= 0.1; within 2% there (Oseen's first
+  /// correction is 3 Re / 16).
   stokes,
   /// Schiller & Naumann (1933), Z. Ver. Dtsch. Ing. 77, 318: Cd = 24/Re (1 + 0.15 Re^0.687),
-  /// Re <= 800, about 5% (as listed by Clift, Grace & Weber, "Bubbles, Drops, and
-  /// Particles", Academic Press 1978, Table 5.2; from memory).
+  /// Re <= 800; within 6%.
   schiller_naumann_1933,
   /// Clift & Gauvin (1970), Proc. Chemeca '70, 1, 14: Schiller–Naumann plus
-  /// 0.42 / (1 + 42500 Re^-1.16), Re <= 3e5 (below the crisis), about 6% (Clift, Grace &
-  /// Weber 1978; from memory).
+  /// 0.42 / (1 + 42500 Re^-1.16), Re <= 3e5 (below the crisis); within 7%.
   clift_gauvin_1970,
   /// Brown & Lawler (2003), J. Environ. Eng. 129(3), 222: Cd = 24/Re (1 + 0.150 Re^0.681)
-  /// + 0.407 / (1 + 8710 / Re), Re <= 2e5, fitted to 480 corrected measurements, a few
-  /// percent (from memory).
+  /// + 0.407 / (1 + 8710 / Re), Re <= 2e5 (fitted to corrected settling measurements);
+  /// within 8%.
   brown_lawler_2003,
   /// Morrison (2013), "An Introduction to Fluid Mechanics", Cambridge University Press:
   /// Cd = 24/Re + 2.6 (Re/5) / (1 + (Re/5)^1.52) + 0.411 (Re/2.63e5)^-7.94 /
   /// (1 + (Re/2.63e5)^-8) + 0.25 (Re/1e6) / (1 + Re/1e6), Re <= 1e6 (the author advises
-  /// against larger Re), drag crisis included. No accuracy figure is stated; against the
-  /// other correlations here it lies within about 12% below Re = 2e5 (measured in
-  /// tests/physics/sphere_drag_test.cpp).
+  /// against larger Re), drag crisis included; within 17% up to Re = 2e5 (no figure is
+  /// stated by the author). It puts the crisis near Re = 2.6e5, earlier than the standard
+  /// curve (3.4e5..4e5), so there it can be off by a factor of 3.
   morrison_2013,
 };
 
-/// What a correlation claims: its name, largest valid Reynolds number and its accuracy (a
-/// relative error on Cd as its source states it, or as estimated where none is stated).
+/// What a correlation offers: its name, largest valid Reynolds number and its accuracy (the
+/// largest relative deviation of Cd from the standard drag curve, see above).
 struct correlation_info {
   std::string_view name;
   double max_reynolds;
@@ -58,10 +64,10 @@ struct correlation_info {
 [[nodiscard]] constexpr correlation_info info(sphere_correlation c) noexcept {
   switch (c) {
     case sphere_correlation::stokes: return {"stokes", 0.1, 0.02};
-    case sphere_correlation::schiller_naumann_1933: return {"schiller_naumann_1933", 800.0, 0.05};
-    case sphere_correlation::clift_gauvin_1970: return {"clift_gauvin_1970", 3.0e5, 0.06};
-    case sphere_correlation::brown_lawler_2003: return {"brown_lawler_2003", 2.0e5, 0.05};
-    case sphere_correlation::morrison_2013: return {"morrison_2013", 1.0e6, 0.12};
+    case sphere_correlation::schiller_naumann_1933: return {"schiller_naumann_1933", 800.0, 0.06};
+    case sphere_correlation::clift_gauvin_1970: return {"clift_gauvin_1970", 3.0e5, 0.07};
+    case sphere_correlation::brown_lawler_2003: return {"brown_lawler_2003", 2.0e5, 0.08};
+    case sphere_correlation::morrison_2013: return {"morrison_2013", 1.0e6, 0.17};
   }
   return {"unknown", 0.0, 1.0};
 }
@@ -106,7 +112,7 @@ template <Real T>
 /// non-positive Re, or one above the correlation's range.
 template <Real T>
 [[nodiscard]] result<T> sphere_drag_coefficient(const T& reynolds,
-                                                sphere_correlation c = sphere_correlation::morrison_2013) {
+                                                sphere_correlation c = sphere_correlation::clift_gauvin_1970) {
   if (!is_finite(reynolds) || !(reynolds > T(0)))
     return fail(errc::invalid_argument, "Reynolds number must be finite and > 0", reynolds);
   if (reynolds > T(info(c).max_reynolds))
