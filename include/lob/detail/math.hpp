@@ -3,6 +3,8 @@
 /// Internal maths helpers: a Boost.Math policy that never throws, and the phi functions
 /// of linear-drag flight evaluated without cancellation.
 
+#include <cmath>
+#include <limits>
 #include <type_traits>
 
 #include <boost/math/policies/policy.hpp>
@@ -63,19 +65,12 @@ template <Real T>
   return x == T(0) ? T(1) : T(detail::log1p(x) / x);
 }
 
-/// m(x) = -log1pmx(x) / x^2 = (x - log(1 + x)) / x^2, continuous at 0 (value 1/2), x > -1.
-/// The apex height of linear-drag flight is v^2/G * m(k v/G). With y = x/(2 + x),
-/// log(1 + x) = 2 atanh(y) gives m = (1 - y)/2 * (1 - y (1 - y) S(y^2)), S(w) =
-/// sum_j w^j/(2j + 3), whose terms all have one sign for y > 0 and are small for y < 0, so
-/// nothing cancels and x^2 never under- or overflows; used for |y| <= 1/3 (x in
-/// [-1/2, 1]), where S converges at least like 9^-j. Outside, (x - log1p(x))/x^2 loses
-/// at most a few ulps.
+/// S(w) = sum_j w^j / (2j + 3) for 0 <= w <= 1/9: the series behind log1p(x) = 2y (1 + y^2 S)
+/// and -log1pmx(x)/x^2 = (1 - y)/2 (1 - y (1 - y) S) with y = x/(2 + x) and w = y^2
+/// (from log(1 + x) = 2 atanh(y)). Terms fall at least like 9^-j.
 template <Real T>
-[[nodiscard]] T log1pmx_ratio(const T& x) {
-  const T y = x / (T(2) + x);
-  if (T(3) * y > T(1) || T(3) * y < T(-1)) return T((x - detail::log1p(x)) / (x * x));
+[[nodiscard]] T log1pmx_series(const T& w) {
   const T eps = epsilon<T>();
-  const T w = y * y;
   T power = T(1);
   T sum = T(1) / T(3);
   for (int j = 1; j < 200; ++j) {  // 9^-j: 200 terms exceed any precision
@@ -84,7 +79,120 @@ template <Real T>
     sum += term;
     if (term <= eps * sum) break;
   }
+  return sum;
+}
+
+/// m(x) = -log1pmx(x) / x^2 = (x - log(1 + x)) / x^2, continuous at 0 (value 1/2), x > -1,
+/// without cancellation: from log1pmx_series for |y| <= 1/3 (x in [-1/2, 1]), where all
+/// terms have one sign or are small; outside, (x - log1p(x))/x^2 loses at most about 6 ulps.
+template <Real T>
+[[nodiscard]] T log1pmx_ratio(const T& x) {
+  const T y = x / (T(2) + x);
+  if (T(3) * y > T(1) || T(3) * y < T(-1)) return T((x - detail::log1p(x)) / (x * x));
+  const T sum = log1pmx_series(T(y * y));
   return T((T(1) - y) / T(2) * (T(1) - y * (T(1) - y) * sum));
+}
+
+/// Coefficients c_n of u(p)/p = sum_n c_n p^n, where u(p) is the root of
+/// -log1pmx(-u) = p^2/2 with the sign of p (p > 0: u in [0, 1), the W0 branch; p < 0:
+/// u < 0, the W-1 branch). Then u = 1 + W(-exp(-p^2/2 - 1)): this is the branch-point
+/// series of the Lambert W function (Corless, Gonnet, Hare, Jeffrey & Knuth, "On the
+/// Lambert W function", Adv. Comput. Math. 5 (1996), sec. 4) in the variable p =
+/// sqrt(-2 E) instead of sqrt(2 (1 + e z)), so that it needs no z near -1/e at all. The
+/// rational coefficients were obtained by Lagrange inversion in exact arithmetic and are
+/// checked against mpmath in scripts/exact_reference.py (--check-series); the series
+/// converges for |p| < 2 sqrt(pi) (the next branch point, -p^2/2 = 2 pi i).
+template <class T>
+inline constexpr T branch_coefficients[34] = {
+    T(1.0L),
+    T(-0.3333333333333333333333333L),
+    T(0.02777777777777777777777778L),
+    T(0.003703703703703703703703704L),
+    T(0.0002314814814814814814814815L),
+    T(-0.00005878894767783656672545561L),
+    T(-0.00002553644914756025867136978L),
+    T(-0.000004899078973153047227121301L),
+    T(-0.0000002428276122977769068304048L),
+    T(0.0000001854062210715159960701799L),
+    T(7.542464855411896368196584e-8L),
+    T(1.472162728068839942030005e-8L),
+    T(5.159887341078075831053382e-10L),
+    T(-7.32986413160022003040997e-10L),
+    T(-2.921357345635568791035316e-10L),
+    T(-5.717312238897993896364055e-11L),
+    T(-1.500834940879191162757527e-12L),
+    T(3.239317851416902815257827e-12L),
+    T(1.282207790561442960194425e-12L),
+    T(2.513834640057087794545275e-13L),
+    T(5.24018668188387370039877e-15L),
+    T(-1.532619664727720626739863e-14L),
+    T(-6.053864010513748112692896e-15L),
+    T(-1.188953908626976800165288e-15L),
+    T(-2.055644733697029047596258e-17L),
+    T(7.597033959365170321306246e-17L),
+    T(2.999822650631319012618947e-17L),
+    T(5.900904005856486363982672e-18L),
+    T(8.726010378440994563002107e-20L),
+    T(-3.895646579519858862941029e-19L),
+    T(-1.538721628974349922006993e-19L),
+    T(-3.030976893455074101314718e-20L),
+    T(-3.918959253950962124376744e-22L),
+    T(2.049773603878145111920749e-21L),
+};
+
+/// u(p)/p for |p| <= 1/2 (see branch_coefficients), by Horner's rule with as many terms
+/// as the precision of T needs at that |p| (the tail below eps/8; counts from the
+/// coefficients' sizes). Types wider than 64 bits get 34 terms, about 1e-22 at |p| = 1/2,
+/// and their callers polish the result.
+template <Real T>
+[[nodiscard]] T branch_ratio(const T& p) {
+  using std::abs;
+  const T a = abs(p);
+  static constexpr double limits[8] = {1e-4, 1e-3, 1e-2, 3e-2, 0.1, 0.2, 0.3, 0.5};
+  static constexpr int terms_24[8] = {2, 3, 3, 4, 5, 6, 7, 8};
+  static constexpr int terms_53[8] = {4, 5, 7, 8, 10, 12, 15, 18};
+  static constexpr int terms_64[8] = {5, 6, 8, 9, 12, 15, 17, 22};
+  constexpr int digits = std::numeric_limits<T>::digits;
+  const int* terms = digits <= 24 ? terms_24 : digits <= 53 ? terms_53 : terms_64;
+  int n = 34;
+  if (digits <= 64) {
+    n = terms[7];
+    for (int i = 0; i < 8; ++i) {
+      if (a <= T(limits[i])) {
+        n = terms[i];
+        break;
+      }
+    }
+  }
+  if constexpr (std::is_floating_point_v<T>) {
+    T sum = branch_coefficients<T>[n - 1];
+    for (int i = n - 2; i >= 0; --i) sum = sum * p + branch_coefficients<T>[i];
+    return sum;
+  } else {
+    T sum = T(branch_coefficients<long double>[n - 1]);
+    for (int i = n - 2; i >= 0; --i) sum = T(sum * p + T(branch_coefficients<long double>[i]));
+    return sum;
+  }
+}
+
+/// e^-z and phi1(z) = (1 - e^-z)/z together, z >= 0, from one exponential: expm1 below
+/// z = 1/2 (where 1 - e^-z would cancel), exp above (where 1 + expm1 would lose e^-z's
+/// relative accuracy once e^-z is small).
+template <Real T>
+struct decay_pair {
+  T factor;  ///< e^-z
+  T phi1;    ///< (1 - e^-z)/z
+};
+template <Real T>
+[[nodiscard]] decay_pair<T> decay(const T& z) {
+  using std::exp;
+  if (z == T(0)) return {T(1), T(1)};
+  if (z < T(1) / T(2)) {
+    const T em = detail::expm1(T(-z));
+    return {T(T(1) + em), T(-em / z)};
+  }
+  const T e = exp(-z);
+  return {e, T((T(1) - e) / z)};
 }
 
 /// phi1(z) = (1 - e^-z) / z, continuous at 0 (value 1); z >= 0.
@@ -115,5 +223,54 @@ template <Real T>
   }
   return T((z + detail::expm1(T(-z))) / (z * z));
 }
+
+/// A type with more precision than T for residuals that cancel: long double for double
+/// (where long double is wider), double for float, T itself otherwise.
+template <class T>
+using wider_t = std::conditional_t<
+    std::is_same_v<T, float>, double,
+    std::conditional_t<std::is_same_v<T, double> &&
+                           (std::numeric_limits<long double>::digits > std::numeric_limits<double>::digits),
+                       long double, T>>;
+
+/// The vertical motion of linear-drag flight relative to the launch: rate k [1/s],
+/// vertical launch velocity v [m/s], net pull G = g - k w [m/s^2].
+template <Real T>
+struct vertical_motion {
+  T k, v, G;
+
+  /// Height above the launch at time t: v t phi1(kt) - G t^2 phi2(kt).
+  [[nodiscard]] T rise(const T& t) const {
+    const T z = k * t;
+    return T(v * t * phi1(z) - G * t * t * phi2(z));
+  }
+  /// Vertical velocity at time t: v e^-kt - G t phi1(kt).
+  [[nodiscard]] T climb(const T& t) const {
+    const decay_pair<T> d = decay(T(k * t));
+    return T(v * d.factor - G * t * d.phi1);
+  }
+
+  /// Safeguarded Newton (bisection whenever a step leaves the bracket) for rise(t) = dh
+  /// on [lo, hi], where (rise - dh) * direction goes from < 0 to > 0. At most 200 steps;
+  /// false when they run out. `t` gets the root (or the last iterate).
+  [[nodiscard]] bool newton(const T& dh, T lo, T hi, const T& guess, int direction, T& t) const {
+    using std::abs;
+    const T eps = epsilon<T>();
+    t = guess > lo && guess < hi ? guess : T((lo + hi) / 2);
+    for (int i = 0; i < 200; ++i) {
+      const T f = T(rise(t) - dh) * T(direction);
+      if (f == T(0)) return true;
+      if (f < T(0)) lo = t;
+      else hi = t;
+      const T slope = climb(t) * T(direction);
+      T next = slope > T(0) ? T(t - f / slope) : T((lo + hi) / 2);
+      if (!(next > lo && next < hi)) next = (lo + hi) / 2;
+      const T step = abs(T(next - t));
+      t = next;
+      if (step <= 2 * eps * abs(t) || !(hi - lo > 2 * eps * abs(t))) return true;
+    }
+    return false;
+  }
+};
 
 }  // namespace lob::detail

@@ -3,9 +3,26 @@
 /// `linear_flight`: the exact flight of a body under linear drag (rate k >= 0; k = 0 is
 /// vacuum) in 3-D with constant wind. Closed forms for the state at any time; the apex in
 /// closed form; height crossings through the Lambert W function, made uniformly accurate.
+///
+/// Why a reformulation is needed: the textbook flight time (Warburton & Wang, Am. J. Phys.
+/// 72 (2004); Packel & Yuen, College Math. J. 35 (2004)) is t = (1 + x + W0(z))/k with
+/// x = k v/g and z = -(1 + x) e^-(1 + x). As k -> 0, z sits next to the branch point -1/e
+/// and 1 + W0(z) ~ sqrt(2 (1 + e z)): rounding z alone (relative 1e-16) leaves 1 + e z
+/// with an absolute error of 1e-16, so 1 + W0 and t lose half their digits at x = 1e-8 and
+/// all of them below. Here the crossing time is written as
+///   t = t_apex + k (H - dh)/G + u(p)/k,   p = k sqrt(2 (H - dh)/G),
+/// with G = g - k w (w the vertical wind), H the apex height above the launch in a form
+/// that does not cancel (v^2/G * m(x), m = -log1pmx(x)/x^2), and u = 1 + W(z) found from p
+/// itself: by a branch-point series in p when |p| <= 1/2, by Boost's lambert_w0/lambert_wm1
+/// of z = -exp(-p^2/2 - 1) (far enough from -1/e to be well conditioned) otherwise.
+/// u(p)/k = sqrt(2 (H - dh)/G) * (u/p), so k = 0 is the vacuum formula with no special case
+/// and the transition is smooth. Every term is >= 0 on the falling branch of an upward or
+/// level shot, so nothing cancels there; the rising branch and downward shots, where terms
+/// of opposite sign meet, are polished by safeguarded Newton on the explicit height.
 
 #include <cstdint>
 #include <limits>
+#include <type_traits>
 #include <utility>
 
 #include <boost/math/special_functions/lambert_w.hpp>
@@ -42,62 +59,80 @@ class linear_flight {
     return linear_flight(rate, air, launch);
   }
 
-  /// The state at time `t` [s] after launch, t >= 0 and finite.
+  /// The state at time `t` [s] after launch, t >= 0 and finite. Errors: `invalid_argument`
+  /// for a negative or non-finite time, or a time so late that the state overflows T.
   [[nodiscard]] result<state<T>> at(const T& t) const {
     if (!is_finite(t) || t < T(0))
       return fail(errc::invalid_argument, "time must be finite and >= 0", t);
-    return state_at(t);
+    return checked(state_at(t));
   }
 
   /// The highest point of the flight at or after launch: where the vertical velocity is
-  /// zero, or the launch point for a shot that starts level or downward. Errors:
-  /// `invalid_argument` without gravity; `never_reaches` when an upward wind at least as
-  /// fast as the body's fall speed carries it up forever.
+  /// zero, or the launch point for a shot that starts level or downward. The state's
+  /// height is the closed-form apex height (`max_height()`) and its vertical velocity is
+  /// exactly zero. Errors: `invalid_argument` without gravity; `never_reaches` when an
+  /// upward wind at least as fast as the body's fall speed carries it up forever.
   [[nodiscard]] result<state<T>> apex() const {
     if (g_ == T(0)) return fail(errc::invalid_argument, "apex needs gravity, got |g| =", g_);
-    if (k_ > T(0) && !(fall_rate() > T(0)))
+    if (!falls_)
       return fail(errc::never_reaches, "no apex: upward wind is at least the fall speed, wind =", w_);
     if (!(climb0() > T(0))) return state_at(T(0));
-    return state_at(turn_time());
-  }
-
-  /// The state where the body crosses `height` [m] on the rising or falling branch.
-  /// Errors: `invalid_argument` for a non-finite height or zero gravity; `never_reaches`
-  /// when that branch never passes the height (above the apex, or below the launch on the
-  /// rising branch).
-  [[nodiscard]] result<state<T>> crossing(const T& height, side branch) const {
-    if (!is_finite(height)) return fail(errc::invalid_argument, "height must be finite", height);
-    if (g_ == T(0))
-      return fail(errc::invalid_argument, "height crossings need gravity, got |g| =", g_);
-    const result<T> t = crossing_time(T(height - h0_), branch);
-    if (!t) return unexpected<error>(t.error());
-    return state_at(*t);
-  }
-
-  /// Where the body comes down through `height` [m] (the falling crossing): time,
-  /// position and velocity; `speed()` and `path_angle_below_horizon()` of the result give
-  /// the landing speed and impact angle.
-  [[nodiscard]] result<state<T>> landing(const T& height = T(0)) const {
-    return crossing(height, side::falling);
-  }
-
-  /// Horizontal distance from the launch point to the landing at `height` [m].
-  [[nodiscard]] result<T> range(const T& height = T(0)) const {
-    const result<state<T>> s = landing(height);
-    if (!s) return unexpected<error>(s.error());
-    return horizontal_distance(*s, launch_, air_);
+    const detail::decay_pair<T> d = detail::decay(T(k_ * t_turn_));
+    state<T> s;
+    s.time = t_turn_;
+    s.position = launch_.position + drift(t_turn_) + up_ * top_;
+    s.velocity = v0_h_ * d.factor + wind_h_ * T(k_ * t_turn_ * d.phi1);
+    return checked(s);
   }
 
   /// The height [m] of the apex (absolute, along "up"): the launch height for a shot that
   /// starts level or downward. Errors as for `apex()`. Computed in closed form,
   /// h0 + v^2/G * m(x) with m(x) = -log1pmx(x)/x^2 (x = k v/G, G = g - k w), which has no
-  /// cancellation for any k, so it is accurate even where the apex state's height is not.
+  /// cancellation for any k.
   [[nodiscard]] result<T> max_height() const {
     if (g_ == T(0)) return fail(errc::invalid_argument, "apex needs gravity, got |g| =", g_);
-    if (k_ > T(0) && !(fall_rate() > T(0)))
+    if (!falls_)
       return fail(errc::never_reaches, "no apex: upward wind is at least the fall speed, wind =", w_);
     if (!(climb0() > T(0))) return h0_;
-    return T(h0_ + apex_rise());
+    return T(h0_ + top_);
+  }
+
+  /// The state where the body crosses `height` [m] on the rising or falling branch. The
+  /// state's height is `height` itself. Errors: `invalid_argument` for a non-finite height
+  /// or zero gravity; `never_reaches` when that branch never passes the height (above the
+  /// apex, or below the launch on the rising branch). Accuracy: a few ulps of T in time,
+  /// position and velocity, times the condition number |H - dh| / (t |v_up|) of a
+  /// crossing near the apex (where the time depends sensitively on the height itself).
+  [[nodiscard]] result<state<T>> crossing(const T& height, side branch) const {
+    if (!is_finite(height)) return fail(errc::invalid_argument, "height must be finite", height);
+    if (g_ == T(0))
+      return fail(errc::invalid_argument, "height crossings need gravity, got |g| =", g_);
+    const T dh = height - h0_;
+    const result<T> t = crossing_time(dh, branch);
+    if (!t) return unexpected<error>(t.error());
+    return checked(state_at_height(*t, dh));
+  }
+
+  /// Where the body comes down through `height` [m] (the falling crossing): time,
+  /// position and velocity; `speed()` and `path_angle_below_horizon()` of the result give
+  /// the landing speed and impact angle. Errors as for `crossing()`.
+  [[nodiscard]] result<state<T>> landing(const T& height = T(0)) const {
+    return crossing(height, side::falling);
+  }
+
+  /// Horizontal distance [m] from the launch point to the landing at `height` [m],
+  /// computed from the displacement itself (no subtraction of positions). Errors as for
+  /// `crossing()`.
+  [[nodiscard]] result<T> range(const T& height = T(0)) const {
+    using std::sqrt;
+    if (!is_finite(height)) return fail(errc::invalid_argument, "height must be finite", height);
+    if (g_ == T(0))
+      return fail(errc::invalid_argument, "height crossings need gravity, got |g| =", g_);
+    const result<T> t = crossing_time(T(height - h0_), side::falling);
+    if (!t) return unexpected<error>(t.error());
+    const T r = sqrt(T(drift(*t).squaredNorm()));
+    if (!is_finite(r)) return fail(errc::invalid_argument, "the range overflows T; landing time", *t);
+    return r;
   }
 
   /// The first state at which the horizontal distance from the launch point (the length of
@@ -119,18 +154,18 @@ class linear_flight {
     const T wind_speed = sqrt(T(wind_h_.squaredNorm()));
     if (k_ == T(0) || wind_speed == T(0)) {
       // k = 0: the ground-frame horizontal velocity is constant (wind plays no part).
-      const T u = k_ == T(0) ? T(sqrt(T(v0_h_.squaredNorm()))) : T(sqrt(T(u0_h_.squaredNorm())));
+      const T u = sqrt(T(v0_h_.squaredNorm()));
       if (!(u > T(0)))
         return fail(errc::never_reaches, "no horizontal motion, so no distance is reached; asked", distance);
-      if (k_ == T(0)) return state_at(T(distance / u));
+      if (k_ == T(0)) return checked(state_at(T(distance / u)));
       const T x = k_ * distance / u;
       if (!(x < T(1)))
         return fail(errc::never_reaches, "drag stops the body short of that distance; limit u/k =", T(u / k_));
-      return state_at(T(distance / u * detail::log1p_over_x(T(-x))));
+      return checked(state_at(T(distance / u * detail::log1p_over_x(T(-x)))));
     }
     const result<T> t = distance_time_in_wind(distance, wind_speed);
     if (!t) return unexpected<error>(t.error());
-    return state_at(*t);
+    return checked(state_at(*t));
   }
 
   [[nodiscard]] const shot<T>& launch() const noexcept { return launch_; }
@@ -145,22 +180,222 @@ class linear_flight {
     g_ = sqrt(T(air.gravity.squaredNorm()));
     up_ = g_ > T(0) ? vec3<T>(-air.gravity / g_) : vec3<T>(vec3<T>::Zero());
     w_ = up_.dot(air.wind);
-    a_ = T(up_.dot(launch.velocity)) - w_;
+    v_ = up_.dot(launch.velocity);
     h0_ = up_.dot(launch.position);
     wind_h_ = across(air.wind);
     v0_h_ = across(launch.velocity);
     u0_h_ = across(vec3<T>(launch.velocity - air.wind));
+    G_ = g_ - k_ * w_;
+    pull_ = air.gravity + k_ * air.wind;
+    has_side_wind_ = k_ > T(0) && wind_h_.squaredNorm() > T(0);
+    falls_ = g_ > T(0) && (k_ == T(0) || G_ > T(0));
+    if (falls_) vertical_constants();
+  }
+
+  // The apex of the vertical motion v(t) = -G/k + (v + G/k) e^-kt (v = climb0()): at
+  // t_turn = log1p(x)/k, rise H = -log1pmx(x) G/k^2 (x = k v/G). For a downward shot
+  // with x > -1 these describe the virtual apex before launch (t_turn < 0). With
+  // y = x/(2 + x), log1p(x) = 2 atanh(y) = 2y (1 + y^2 S) and -log1pmx(x)/x^2 =
+  // (1 - y)/2 (1 - y (1 - y) S), S = sum_j y^2j/(2j + 3): for |y| <= 1/3 neither form
+  // cancels nor under- or overflows as k -> 0 (t_turn -> v/g, H -> v^2/2g). Outside,
+  // log1p(x) is used directly; x - log1p(x) then loses at most about 6 ulps.
+  void vertical_constants() {
+    const T v = climb0();
+    if (k_ == T(0)) {
+      x_ = T(0);
+      t_turn_ = v / g_;
+      top_ = v * v / (2 * g_);
+      return;
+    }
+    x_ = k_ * v / G_;
+    if (!(x_ > T(-1))) return;  // launched down at least as fast as the fall speed
+    const T y = x_ / (T(2) + x_);
+    if (T(3) * y <= T(1) && T(3) * y >= T(-1)) {
+      const T sum = detail::log1pmx_series(T(y * y));
+      t_turn_ = v / G_ * T(T(1) - y) * T(T(1) + y * y * sum);
+      top_ = v * v / G_ * T(T(1) - y) / T(2) * T(T(1) - y * (T(1) - y) * sum);
+    } else {
+      const T l = detail::log1p(x_);
+      t_turn_ = l / k_;
+      top_ = T(x_ - l) / k_ * (G_ / k_);
+    }
   }
 
   // The part of a vector across "up" (the whole vector when there is no gravity).
   [[nodiscard]] vec3<T> across(const vec3<T>& v) const { return vec3<T>(v - T(up_.dot(v)) * up_); }
 
-  // Apex height above the launch, v^2/G * m(x), m(x) = -log1pmx(x)/x^2 (detail::log1pmx_ratio);
-  // needs climb0() > 0 and G > 0 (or k = 0).
-  [[nodiscard]] T apex_rise() const {
-    const T G = fall_rate();
+  // The motion is x(t) = x0 + v0 t phi1(kt) + A t^2 phi2(kt), v(t) = v0 e^-kt + A t phi1(kt)
+  // with A = g + k wind: the solution of a = g - k (v - wind) written without the
+  // relative velocity v0 - wind, whose wind part would cancel against wind * t when the
+  // wind is strong and k t small (wind t (1 - phi1) = k wind t^2 phi2 is the same term
+  // without the cancellation); k -> 0 needs no special case (phi1 -> 1, phi2 -> 1/2).
+
+  // Horizontal displacement from the launch at time t; phi2 only when there is wind.
+  [[nodiscard]] vec3<T> drift(const T& t) const {
+    const T z = k_ * t;
+    const T p1 = detail::decay(z).phi1;
+    if (!has_side_wind_) return vec3<T>(v0_h_ * T(t * p1));
+    return vec3<T>(v0_h_ * T(t * p1) + wind_h_ * T(k_ * t * t * detail::phi2(z)));
+  }
+
+  [[nodiscard]] state<T> state_at(const T& t) const {
+    const T z = k_ * t;
+    const detail::decay_pair<T> d = detail::decay(z);
+    const T p2 = detail::phi2(z);
+    state<T> s;
+    s.time = t;
+    s.position = launch_.position + launch_.velocity * T(t * d.phi1) + pull_ * T(t * t * p2);
+    s.velocity = launch_.velocity * d.factor + pull_ * T(t * d.phi1);
+    return s;
+  }
+
+  // The state at a crossing time t of the height change dh: the horizontal part from the
+  // closed form, the height set to dh exactly (it is the defining property of t).
+  [[nodiscard]] state<T> state_at_height(const T& t, const T& dh) const {
+    const detail::decay_pair<T> d = detail::decay(T(k_ * t));
+    state<T> s;
+    s.time = t;
+    s.position = launch_.position + drift(t) + up_ * dh;
+    s.velocity = launch_.velocity * d.factor + pull_ * T(t * d.phi1);
+    return s;
+  }
+
+  [[nodiscard]] static result<state<T>> checked(const state<T>& s) {
+    if (!is_finite(s.position) || !is_finite(s.velocity) || !is_finite(s.time))
+      return fail(errc::invalid_argument, "the state overflows T at time", s.time);
+    return s;
+  }
+
+  // Height above the launch point along "up": v t phi1 - G t^2 phi2.
+  [[nodiscard]] T rise(const T& t) const { return detail::vertical_motion<T>{k_, v_, G_}.rise(t); }
+  [[nodiscard]] const T& climb0() const { return v_; }
+
+  [[nodiscard]] result<T> crossing_time(const T& dh, side branch) const {
+    if (!falls_) return crossing_in_updraft(dh, branch);
     const T v = climb0();
-    return T(v * v / G * detail::log1pmx_ratio(T(k_ * v / G)));
+    if (v < T(0)) {
+      if (dh > T(0)) return fail(errc::never_reaches, "a downward shot never rises to that height, by", dh);
+      if (branch == side::rising && dh < T(0))
+        return fail(errc::never_reaches, "rising branch starts above that height, by", T(-dh));
+      if (dh == T(0)) return T(0);
+      return downward_crossing(dh);
+    }
+    // The path rises on [0, t_turn] and falls on [t_turn, inf) (t_turn = 0 if v = 0).
+    if (dh > top_) return fail(errc::never_reaches, "height is above the apex by", T(dh - top_));
+    if (dh == top_) return t_turn_;
+    if (branch == side::rising) {
+      if (dh < T(0)) return fail(errc::never_reaches, "rising branch starts above that height, by", T(-dh));
+      if (dh == T(0)) return T(0);
+      if (k_ == T(0)) return vacuum_crossing(dh, branch);
+      return polish(dh, T(0), t_turn_, apex_form(dh, branch), +1);
+    }
+    const T t = apex_form(dh, branch);
+    // Every term of apex_form is >= 0 here: for T up to 64 bits it is already within a
+    // few ulps (the reference tests show it); wider types polish the series' guess.
+    if (std::numeric_limits<T>::digits <= 64) return t;
+    return polish_open(dh, t_turn_, t, -1);
+  }
+
+  // t = t_turn + k D/G +- sqrt(2 D/G) * (u(p)/p), D = H - dh >= 0, p = +-k sqrt(2 D/G)
+  // (see the file comment); + on the falling branch (W0), - on the rising one (W-1).
+  [[nodiscard]] T apex_form(const T& dh, side branch) const {
+    using std::exp;
+    using std::sqrt;
+    const T D = top_ - dh;
+    const T fall = sqrt(T(2 * D / G_));
+    const T p = branch == side::falling ? T(k_ * fall) : T(-k_ * fall);
+    T tail;
+    if (p <= T(1) / T(2) && p >= T(-1) / T(2)) {
+      tail = branch == side::falling ? T(fall * detail::branch_ratio(p)) : T(-fall * detail::branch_ratio(p));
+    } else {
+      // Types wider than long double take W from long double (Boost's multiprecision
+      // Lambert W would pull in __float128) and are polished afterwards.
+      using W = std::conditional_t<(std::numeric_limits<T>::digits <= 64), T, long double>;
+      const W z = W(-exp(T(-p * p / 2 - 1)));
+      const W w = branch == side::falling ? W(boost::math::lambert_w0(z, detail::no_throw_policy{}))
+                                          : W(boost::math::lambert_wm1(z, detail::no_throw_policy{}));
+      tail = (T(1) + T(w)) / k_;
+    }
+    return T(t_turn_ + k_ * D / G_ + tail);
+  }
+
+  // A downward shot (v < 0) crossing dh < 0. The vertical speed moves monotonically from
+  // |v| towards the fall speed G/k, so the time lies between |dh| / max(|v|, G/k) and
+  // |dh| / min(|v|, G/k). Vacuum: the root 2 dh/(v - sqrt(v^2 - 2 g dh)), which does not
+  // cancel. With drag the apex form would subtract the virtual apex time, so its value
+  // only seeds safeguarded Newton on the explicit height.
+  [[nodiscard]] result<T> downward_crossing(const T& dh) const {
+    using std::abs;
+    if (k_ == T(0)) return vacuum_crossing(dh, side::falling);
+    const T speed = abs(climb0());
+    const T fall_speed = G_ / k_;
+    const T lo = -dh / (speed > fall_speed ? speed : fall_speed);
+    const T hi = -dh / (speed > fall_speed ? fall_speed : speed);
+    const T guess = x_ > T(-1) ? apex_form(dh, side::falling) : T((lo + hi) / 2);
+    return polish(dh, lo, hi, guess, -1);
+  }
+
+  // Vacuum: roots of (g/2) t^2 - v t + dh = 0 in the form that does not cancel (the
+  // smaller root from the product of the roots, 2 dh / g).
+  [[nodiscard]] T vacuum_crossing(const T& dh, side branch) const {
+    using std::sqrt;
+    const T v = climb0();
+    T disc = v * v - 2 * g_ * dh;
+    if (disc < T(0)) disc = T(0);
+    const T s = sqrt(disc);
+    if (branch == side::falling) return v >= T(0) ? T((v + s) / g_) : T(2 * dh / (v - s));
+    return T(2 * dh / (v + s));  // rising: only asked with v > 0 and 0 < dh < top
+  }
+
+  // Safeguarded Newton on rise(t) = dh inside [lo, hi], where rise - dh changes sign and
+  // `direction` is +1 (rising) or -1 (falling). rise(t) is evaluated in the phi1/phi2
+  // form, which is accurate for every k, in a type wider than T where one exists
+  // (detail::wider_t: long double for double, double for float): near a crossing the
+  // height is a sum of terms much larger than the residual (a fast downward shot that
+  // sheds its speed within the drop: |v|/k ~ |dh|), and the extra bits absorb that loss,
+  // so the root gets the full precision of T.
+  [[nodiscard]] result<T> polish(const T& dh, const T& lo, const T& hi, const T& guess, int direction) const {
+    using W = detail::wider_t<T>;
+    const detail::vertical_motion<W> m{W(k_), W(v_), W(G_)};
+    W t;
+    if (!m.newton(W(dh), W(lo), W(hi), W(guess), direction, t))
+      return fail(errc::no_convergence, "height crossing did not converge, at t =", t);
+    return T(t);
+  }
+
+  // As polish() on [lo, inf): first widens an upper bound until the height is passed.
+  [[nodiscard]] result<T> polish_open(const T& dh, const T& lo, const T& guess, int direction) const {
+    T hi = guess > lo ? T(guess + (guess - lo) / 8) : T(lo + T(1));
+    for (int i = 0; i < 4000; ++i) {
+      if (T(rise(hi) - dh) * T(direction) >= T(0)) return polish(dh, lo, hi, guess, direction);
+      hi = lo + 2 * (hi - lo);
+      if (!is_finite(hi)) break;
+    }
+    return fail(errc::never_reaches, "no crossing found within the range of T, height change", dh);
+  }
+
+  // Upward wind at least the fall speed (G <= 0, k > 0): the body never falls for good.
+  // Launched upward it rises forever; launched downward it sinks until its vertical
+  // velocity turns (at log1p(k v / G) / k, never if G = 0) and then rises forever.
+  [[nodiscard]] result<T> crossing_in_updraft(const T& dh, side branch) const {
+    const T v = climb0();
+    const T G = G_;
+    const bool turns = v < T(0) && G < T(0);
+    const T t_turn = turns ? T(detail::log1p(T(k_ * v / G)) / k_) : T(0);
+    if (v >= T(0) || branch == side::rising) {
+      const T start = v >= T(0) ? T(0) : t_turn;
+      if (v < T(0) && !turns) return fail(errc::never_reaches, "the body sinks towards a level it never passes, height change", dh);
+      const T low = rise(start);
+      if (dh < low) return fail(errc::never_reaches, "rising branch starts above that height, by", T(low - dh));
+      if (dh == low) return start;
+      return polish_open(dh, start, start, +1);
+    }
+    if (dh > T(0)) return fail(errc::never_reaches, "the falling branch starts below that height, by", dh);
+    if (dh == T(0)) return T(0);
+    if (!turns) return polish_open(dh, T(0), T(0), -1);
+    const T bottom = rise(t_turn);
+    if (dh < bottom) return fail(errc::never_reaches, "the body never sinks that low, short by", T(bottom - dh));
+    return polish(dh, T(0), t_turn, t_turn / 2, -1);
   }
 
   // Horizontal distance at time t in a horizontal wind, split along the wind (r_par) and
@@ -251,175 +486,24 @@ class linear_flight {
     }
     return fail(errc::no_convergence, "distance search did not converge, distance", d);
   }
-
-  // x(t) = x0 + wind t + u0 t phi1(kt) + g t^2 phi2(kt), u0 = v0 - wind: the solution of
-  // a = g - k (v - wind) written so that k -> 0 needs no special case (phi1 -> 1, phi2 -> 1/2).
-  [[nodiscard]] state<T> state_at(const T& t) const {
-    using std::exp;
-    const T z = k_ * t;
-    const T p1 = detail::phi1(z);
-    const T p2 = detail::phi2(z);
-    const vec3<T> u0 = launch_.velocity - air_.wind;
-    state<T> s;
-    s.time = t;
-    s.position = launch_.position + air_.wind * t + u0 * (t * p1) + air_.gravity * (t * t * p2);
-    s.velocity = air_.wind + u0 * T(exp(-z)) + air_.gravity * (t * p1);
-    return s;
-  }
-
-  // Height above the launch point and its rate, along "up".
-  [[nodiscard]] T rise(const T& t) const {
-    const T z = k_ * t;
-    return w_ * t + a_ * t * detail::phi1(z) - g_ * t * t * detail::phi2(z);
-  }
-  [[nodiscard]] T climb(const T& t) const {
-    using std::exp;
-    const T z = k_ * t;
-    return w_ + a_ * T(exp(-z)) - g_ * t * detail::phi1(z);
-  }
-  [[nodiscard]] T climb0() const { return T(a_ + w_); }
-  // G = g - k w: positive when the body's fall speed g/k exceeds the upward wind.
-  [[nodiscard]] T fall_rate() const { return T(g_ - k_ * w_); }
-
-  // Time of zero vertical velocity, t = log(1 + k v/G) / k with v the vertical launch
-  // velocity; written as (v/G) log1p(x)/x so that k = 0 gives v/g. Needs climb0() > 0 and
-  // G > 0 (or k = 0).
-  [[nodiscard]] T turn_time() const {
-    const T G = fall_rate();
-    const T v = climb0();
-    return v / G * detail::log1p_over_x(T(k_ * v / G));
-  }
-
-  [[nodiscard]] result<T> crossing_time(const T& dh, side branch) const {
-    const T v = climb0();
-    const bool falls = k_ == T(0) || fall_rate() > T(0);
-    if (!falls) return crossing_in_updraft(dh, branch);
-
-    // The path rises on [0, t_turn] and falls on [t_turn, inf) (t_turn = 0 if v <= 0).
-    const T t_turn = v > T(0) ? turn_time() : T(0);
-    const T top = v > T(0) ? rise(t_turn) : T(0);
-    if (dh > top) return fail(errc::never_reaches, "height is above the apex by", T(dh - top));
-    if (dh == top) return t_turn;
-    if (branch == side::rising) {
-      if (dh < T(0)) return fail(errc::never_reaches, "rising branch starts above that height, by", T(-dh));
-      if (dh == T(0)) return T(0);
-    }
-    if (k_ == T(0)) return vacuum_crossing(dh, branch);
-    const T guess = lambert_w_guess(dh, branch);
-    if (branch == side::rising) return polish(dh, T(0), t_turn, guess, +1);
-    return polish_open(dh, t_turn, guess, -1);
-  }
-
-  // Vacuum: roots of (g/2) t^2 - v t + dh = 0 in the form that does not cancel (the
-  // smaller root from the product of the roots, 2 dh / g).
-  [[nodiscard]] T vacuum_crossing(const T& dh, side branch) const {
-    using std::sqrt;
-    const T v = climb0();
-    T disc = v * v - 2 * g_ * dh;
-    if (disc < T(0)) disc = T(0);
-    const T s = sqrt(disc);
-    if (branch == side::falling) return v >= T(0) ? T((v + s) / g_) : T(2 * dh / (v - s));
-    return T(2 * dh / (v + s));  // rising: only asked with v > 0 and 0 < dh < top
-  }
-
-  // First estimate of a crossing time from the Lambert W form. With G = g - k w,
-  // x = k v / G and q = k^2 dh / G, the crossing satisfies k t = (x - q) + (1 + W(z)),
-  // z = -exp(E - 1), E = log1pmx(x) + q, on W0 (falling) or W-1 (rising). Forming z from
-  // E (rather than from x and q directly) keeps its distance to the branch point -1/e,
-  // s = 1 + e z = -expm1(E), accurate. Near the branch point (s < 1/100) W itself is
-  // ill-conditioned, so 1 + W is summed from the branch-point series in p = +-sqrt(2 s)
-  // (Corless, Gonnet, Hare, Jeffrey & Knuth, "On the Lambert W function", Adv. Comput.
-  // Math. 5 (1996), eq. 4.22; coefficients from memory, the result is polished anyway).
-  [[nodiscard]] T lambert_w_guess(const T& dh, side branch) const {
-    using std::exp;
-    using std::sqrt;
-    const T G = fall_rate();
-    const T x = k_ * climb0() / G;
-    const T q = k_ * k_ * dh / G;
-    const T E = detail::log1pmx(x) + q;
-    const T s = -detail::expm1(E);
-    T one_plus_w;
-    if (s < T(1) / T(100)) {
-      const T p = branch == side::falling ? T(sqrt(2 * s)) : T(-sqrt(2 * s));
-      one_plus_w = p * (T(1) + p * (T(-1) / T(3) + p * (T(11) / T(72) +
-                   p * (T(-43) / T(540) + p * (T(769) / T(17280) + p * (T(-221) / T(8505)))))));
-    } else {
-      const T z = -exp(T(E - 1));
-      const T w = branch == side::falling ? T(boost::math::lambert_w0(z, detail::no_throw_policy{}))
-                                          : T(boost::math::lambert_wm1(z, detail::no_throw_policy{}));
-      one_plus_w = T(1) + w;
-    }
-    return (x - q + one_plus_w) / k_;
-  }
-
-  // Safeguarded Newton on rise(t) = dh inside [lo, hi], where rise - dh changes sign and
-  // `direction` is +1 (rising) or -1 (falling). rise(t) is evaluated in the expm1/series
-  // form above, which is accurate for every k, so the root gets the full precision of T.
-  [[nodiscard]] result<T> polish(const T& dh, T lo, T hi, T t, int direction) const {
-    using std::abs;
-    const T eps = detail::epsilon<T>();
-    if (!(t > lo && t < hi)) t = (lo + hi) / 2;
-    for (int i = 0; i < 200; ++i) {
-      const T f = T(rise(t) - dh) * T(direction);  // increasing in t on [lo, hi]
-      if (f == T(0)) return t;
-      if (f < T(0)) lo = t;
-      else hi = t;
-      const T slope = climb(t) * T(direction);
-      T next = slope > T(0) ? T(t - f / slope) : T((lo + hi) / 2);
-      if (!(next > lo && next < hi)) next = (lo + hi) / 2;
-      const T step = abs(T(next - t));
-      t = next;
-      if (step <= 2 * eps * abs(t) || !(hi - lo > 2 * eps * abs(t))) return t;
-    }
-    return fail(errc::no_convergence, "height crossing did not converge, at t =", t);
-  }
-
-  // As polish() on [lo, inf): first widens an upper bound until the height is passed.
-  [[nodiscard]] result<T> polish_open(const T& dh, const T& lo, const T& guess, int direction) const {
-    T hi = guess > lo ? T(guess + (guess - lo) / 8) : T(lo + T(1));
-    for (int i = 0; i < 4000; ++i) {
-      if (T(rise(hi) - dh) * T(direction) >= T(0)) return polish(dh, lo, hi, guess, direction);
-      hi = lo + 2 * (hi - lo);
-      if (!is_finite(hi)) break;
-    }
-    return fail(errc::never_reaches, "no crossing found within the range of T, height change", dh);
-  }
-
-  // Upward wind at least the fall speed (G <= 0, k > 0): the body never falls for good.
-  // Launched upward it rises forever; launched downward it sinks until its vertical
-  // velocity turns (at log1p(k v / G) / k, never if G = 0) and then rises forever.
-  [[nodiscard]] result<T> crossing_in_updraft(const T& dh, side branch) const {
-    const T v = climb0();
-    const T G = fall_rate();
-    const bool turns = v < T(0) && G < T(0);
-    const T t_turn = turns ? T(detail::log1p(T(k_ * v / G)) / k_) : T(0);
-    if (v >= T(0) || branch == side::rising) {
-      const T start = v >= T(0) ? T(0) : t_turn;
-      if (v < T(0) && !turns) return fail(errc::never_reaches, "the body sinks towards a level it never passes, height change", dh);
-      const T low = rise(start);
-      if (dh < low) return fail(errc::never_reaches, "rising branch starts above that height, by", T(low - dh));
-      if (dh == low) return start;
-      return polish_open(dh, start, start, +1);
-    }
-    if (dh > T(0)) return fail(errc::never_reaches, "the falling branch starts below that height, by", dh);
-    if (dh == T(0)) return T(0);
-    if (!turns) return polish_open(dh, T(0), T(0), -1);
-    const T bottom = rise(t_turn);
-    if (dh < bottom) return fail(errc::never_reaches, "the body never sinks that low, short by", T(bottom - dh));
-    return polish(dh, T(0), t_turn, t_turn / 2, -1);
-  }
-
   T k_;
   medium<T> air_;
   shot<T> launch_;
   T g_{};
   vec3<T> up_;
   T w_{};   // vertical wind
-  T a_{};   // vertical launch velocity relative to the air
+  T v_{};   // vertical launch velocity
   T h0_{};  // launch height
   vec3<T> wind_h_;  // wind across "up"
   vec3<T> v0_h_;    // launch velocity across "up"
   vec3<T> u0_h_;    // launch velocity relative to the air, across "up"
+  vec3<T> pull_;    // g + k wind: the acceleration of a body at rest on the ground
+  bool has_side_wind_{};  // k > 0 and wind across "up"
+  T G_{};           // g - k w: the net downward pull on a body at rest in the air
+  bool falls_{};    // g > 0 and (k = 0 or G > 0): the body eventually falls
+  T x_{};           // k v / G
+  T t_turn_{};      // time of the (possibly virtual) apex
+  T top_{};         // rise of the (possibly virtual) apex above the launch
 };
 
 }  // namespace lob
