@@ -1,0 +1,659 @@
+#pragma once
+/// \file lob/solve/aim.hpp
+/// Aiming: `aim()` (every launch direction that passes through a target at a given speed,
+/// flat and lofted), `speed_for_elevation()` (the speed that makes a given elevation pass
+/// through the target) and `least_speed()` (the smallest speed that reaches the target).
+/// Written once on `fly()`; vacuum and linear drag use an exact reduction to one unknown.
+
+#include <optional>
+
+#include "lob/solve/farthest.hpp"
+
+namespace lob {
+
+/// An aiming question: launch point [m], target [m] (absolute world points) and launch
+/// speed [m/s].
+template <Real T>
+struct aim_request {
+  vec3<T> launch_point = vec3<T>::Zero();
+  vec3<T> target = vec3<T>::Zero();
+  T speed{};
+};
+
+/// One launch that passes through the target: elevation and azimuth [rad] (see
+/// `aim_frame`), launch speed [m/s] and velocity [m/s], time of flight to the target [s],
+/// and the arrival: the state at the target, its speed [m/s] and its descent angle below
+/// the horizon [rad] (negative while still climbing).
+template <Real T>
+struct aim_solution {
+  T elevation{};
+  T azimuth{};
+  T speed{};
+  T time_of_flight{};
+  vec3<T> velocity = vec3<T>::Zero();
+  state<T> arrival{};
+  T arrival_speed{};
+  T descent_angle{};
+};
+
+/// The solutions of an aim: the flat one (shorter flight) and the lofted one; either may
+/// be absent, and at the edge of reach they coincide. Fixed capacity, no heap.
+template <Real T>
+struct aim_solutions {
+  std::optional<aim_solution<T>> flat;
+  std::optional<aim_solution<T>> lofted;
+  [[nodiscard]] int count() const noexcept { return (flat ? 1 : 0) + (lofted ? 1 : 0); }
+};
+
+/// A speed question: launch point and target [m], and the elevation [rad] to launch at.
+template <Real T>
+struct elevation_request {
+  vec3<T> launch_point = vec3<T>::Zero();
+  vec3<T> target = vec3<T>::Zero();
+  T elevation{};
+};
+
+/// A least-speed question: launch point and target [m].
+template <Real T>
+struct target_request {
+  vec3<T> launch_point = vec3<T>::Zero();
+  vec3<T> target = vec3<T>::Zero();
+};
+
+namespace detail {
+
+template <Real T>
+[[nodiscard]] status check_points(const vec3<T>& launch, const vec3<T>& target, const medium<T>& air) {
+  using std::sqrt;
+  if (!is_finite(launch)) return fail(errc::invalid_argument, "launch point must be finite");
+  if (!is_finite(target)) return fail(errc::invalid_argument, "target must be finite");
+  if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
+  const T dist = sqrt(T((target - launch).squaredNorm()));
+  if (!(dist > T(0))) return fail(errc::invalid_argument, "target is at the launch point, distance", dist);
+  return {};
+}
+
+// Completes a solution from a launch velocity and the time it meets the target: flies it
+// with lob::fly() and records the arrival.
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<aim_solution<T>> complete(const M& model, const medium<T>& air, const aim_frame<T>& frame,
+                                               const vec3<T>& launch, const vec3<T>& velocity, const T& time,
+                                               const solve_options<T>& o) {
+  using std::sqrt;
+  aim_solution<T> s;
+  s.velocity = velocity;
+  s.speed = sqrt(T(velocity.squaredNorm()));
+  s.elevation = frame.elevation_of(velocity);
+  s.azimuth = frame.azimuth_of(velocity);
+  s.time_of_flight = time;
+  const auto flight = fly(model, air, shot<T>{launch, velocity}, o.flight);
+  if (!flight) return unexpected<error>(flight.error());
+  const result<state<T>> end = flight->at(time);
+  if (!end) return unexpected<error>(end.error());
+  s.arrival = *end;
+  s.arrival_speed = lob::speed(*end);
+  s.descent_angle = path_angle_below_horizon(*end, air);
+  return s;
+}
+
+/// The exact reduction of vacuum and linear-drag aiming to one unknown, the time of
+/// flight t. The flight is x(t) = x0 + w t + (v0 - w) tau(t) + g psi(t), tau = t phi1(kt),
+/// psi = t^2 phi2(kt), linear in v0; so the launch velocity meeting the point
+/// x0 + D + V t at time t is v0(t) = M(t)/tau(t), M = D + (V - w) t + w tau - g psi, and
+/// aiming at speed u is the scalar equation F(t) = |M|^2/tau^2 - u^2 = 0 (any wind, any
+/// target velocity V). With M' = V - w + w e^-kt - g tau and tau' = e^-kt,
+/// F' = 2 H / tau^2 with H = M.M' - |M|^2 e^-kt / tau: the least speed is at the root of
+/// H, the flat and lofted meeting times are the roots of F on either side of it.
+template <Real T>
+struct time_form {
+  T k;
+  vec3<T> g;
+  vec3<T> n0;     // D
+  vec3<T> drift;  // V - w
+  vec3<T> wind;   // w
+
+  struct values {
+    T tau, decay, mm, mm1;
+  };
+  [[nodiscard]] values eval(const T& t) const {
+    using std::exp;
+    const T z = k * t;
+    const T tau = t * phi1(z);
+    const T decay = exp(-z);
+    const vec3<T> m = n0 + drift * t + wind * tau - g * T(t * t * phi2(z));
+    const vec3<T> m1 = drift + wind * decay - g * tau;
+    return {tau, decay, T(m.squaredNorm()), T(m.dot(m1))};
+  }
+  [[nodiscard]] vec3<T> m_at(const T& t) const {
+    const T z = k * t;
+    const T tau = t * phi1(z);
+    return vec3<T>(n0 + drift * t + wind * tau - g * T(t * t * phi2(z)));
+  }
+  [[nodiscard]] T tau_at(const T& t) const { return T(t * phi1(T(k * t))); }
+  // Launch speed squared that meets the point at time t.
+  [[nodiscard]] T need2(const T& t) const {
+    const values v = eval(t);
+    return T(v.mm / (v.tau * v.tau));
+  }
+  // H = M.M' - |M|^2 e^-kt / tau, of the sign of F'.
+  [[nodiscard]] T h_of(const T& t) const {
+    const values v = eval(t);
+    return T(v.mm1 - v.mm * v.decay / v.tau);
+  }
+  // The launch velocity that meets the point at time t.
+  [[nodiscard]] vec3<T> velocity(const T& t) const { return vec3<T>(m_at(t) / tau_at(t)); }
+};
+
+// The time of least needed speed: the root of H between a lower time where H < 0 and an
+// upper one where H > 0, found by halving / doubling from `scale` and polished by TOMS 748.
+// Assumes H changes sign once (true in vacuum, where F is convex in t^2, and checked for
+// drag and wind by the property tests, whose solutions would miss otherwise).
+template <Real T>
+[[nodiscard]] result<T> least_time(const time_form<T>& f, const T& scale, std::uintmax_t max_iter) {
+  auto h = [&](const T& x) { return f.h_of(x); };
+  T lo = scale;
+  T f_lo = h(lo);
+  T hi = scale;
+  T f_hi = f_lo;
+  for (int i = 0; !(f_lo < T(0)); ++i) {
+    if (i > 1000 || !(lo > T(0))) return fail(errc::no_convergence, "least-speed time: no lower bracket");
+    hi = lo;
+    f_hi = f_lo;
+    lo /= 2;
+    f_lo = h(lo);
+  }
+  for (int i = 0; !(f_hi > T(0)); ++i) {
+    if (i > 1000 || !is_finite(hi)) return fail(errc::no_convergence, "least-speed time: no upper bracket");
+    lo = hi;
+    f_lo = f_hi;
+    hi *= 2;
+    f_hi = h(hi);
+  }
+  return bracketed_root(h, lo, hi, f_lo, f_hi, max_iter, "least-speed time did not converge");
+}
+
+// A root of need2(t) = u2 in [lo, hi] (need2 - u2 changes sign), TOMS 748.
+template <Real T>
+[[nodiscard]] result<T> meeting_time(const time_form<T>& f, const T& u2, const T& lo, const T& hi, const T& f_lo,
+                                     const T& f_hi, std::uintmax_t max_iter) {
+  return bracketed_root([&](const T& x) { return T(f.need2(x) - u2); }, lo, hi, f_lo, f_hi, max_iter,
+                        "meeting time did not converge");
+}
+
+template <Real T>
+[[nodiscard]] time_form<T> make_time_form(const T& rate, const medium<T>& air, const vec3<T>& offset,
+                                          const vec3<T>& target_velocity) {
+  return time_form<T>{rate, air.gravity, offset, vec3<T>(target_velocity - air.wind), air.wind};
+}
+
+// Length scale of times: sqrt(2 |D| / g), the least-speed flight time in vacuum.
+template <Real T>
+[[nodiscard]] T time_scale(const vec3<T>& offset, const medium<T>& air) {
+  using std::sqrt;
+  return sqrt(T(2 * sqrt(T(offset.squaredNorm())) / sqrt(T(air.gravity.squaredNorm()))));
+}
+
+// The time form's flat and lofted meeting times for speed u (static target), or
+// out_of_reach carrying the least speed.
+template <Real T>
+struct time_roots {
+  T flat, lofted, least;
+  bool merged;
+};
+template <Real T>
+[[nodiscard]] result<time_roots<T>> time_form_roots(const time_form<T>& f, const T& u, const T& scale,
+                                                     std::uintmax_t max_iter) {
+  using std::sqrt;
+  const result<T> tm = least_time(f, scale, max_iter);
+  if (!tm) return unexpected<error>(tm.error());
+  const T u2 = u * u;
+  const T need = f.need2(*tm);
+  if (!(need < u2)) {
+    if (need - u2 <= T(32) * epsilon<T>() * u2) return time_roots<T>{*tm, *tm, *tm, true};
+    error e(errc::out_of_reach, "target out of reach at this speed; least speed needed",
+            static_cast<long double>(T(sqrt(need))));
+    return unexpected<error>(e);
+  }
+  const T f_m = T(need - u2);
+  T lo = *tm / 2;
+  T f_lo = T(f.need2(lo) - u2);
+  for (int i = 0; !(f_lo > T(0)); ++i) {
+    if (i > 1000 || !(lo > T(0))) return fail(errc::no_convergence, "aim: no lower time bracket");
+    lo /= 2;
+    f_lo = T(f.need2(lo) - u2);
+  }
+  T hi = *tm * 2;
+  T f_hi = T(f.need2(hi) - u2);
+  for (int i = 0; !(f_hi > T(0)); ++i) {
+    if (i > 1000 || !is_finite(hi)) return fail(errc::no_convergence, "aim: no upper time bracket");
+    hi *= 2;
+    f_hi = T(f.need2(hi) - u2);
+  }
+  const result<T> t1 = meeting_time(f, u2, lo, *tm, f_lo, f_m, max_iter);
+  if (!t1) return unexpected<error>(t1.error());
+  const result<T> t2 = meeting_time(f, u2, *tm, hi, f_m, f_hi, max_iter);
+  if (!t2) return unexpected<error>(t2.error());
+  return time_roots<T>{*t1, *t2, *tm, false};
+}
+
+/// One trial shot of the direct (any-model) solvers: where the flight launched at
+/// (elevation, azimuth, speed) is when its horizontal distance first reaches the
+/// target's: `miss` is its height minus the target's [m] (a large negative number,
+/// falling with elevation, if it never gets that far), `drift` the angle [rad] from the
+/// target's bearing to its bearing.
+template <Real T>
+struct probe_result {
+  bool reached = false;
+  T miss{};
+  T drift{};
+  state<T> at{};
+  vec3<T> velocity = vec3<T>::Zero();
+};
+
+template <DragModel M, Real T = scalar_of<M>>
+struct shooter {
+  const M& model;
+  const medium<T>& air;
+  const aim_frame<T>& frame;
+  const solve_options<T>& opts;
+  vec3<T> launch;
+  vec3<T> target;
+  vec3<T> level;  // horizontal part of target - launch
+  T distance;     // |level|
+  T rise;         // height of target above launch
+  T bearing;      // azimuth of the target
+
+  [[nodiscard]] static shooter make(const M& m, const medium<T>& a, const aim_frame<T>& f,
+                                    const solve_options<T>& o, const vec3<T>& from, const vec3<T>& to) {
+    using std::sqrt;
+    const vec3<T> d = to - from;
+    const vec3<T> lv = d - T(f.up.dot(d)) * f.up;
+    return shooter{m, a, f, o, from, to, lv, T(sqrt(T(lv.squaredNorm()))), T(f.up.dot(d)), f.azimuth_of(lv)};
+  }
+
+  [[nodiscard]] probe_result<T> probe(const T& elevation, const T& azimuth, const T& speed) const {
+    probe_result<T> p;
+    p.velocity = vec3<T>(speed * frame.direction(elevation, azimuth));
+    const auto flight = fly(model, air, shot<T>{launch, p.velocity}, opts.flight);
+    const T scale = distance + T(1);
+    p.miss = T(-scale * T(1000)) * (T(4) + elevation);  // never reached: below, decreasing
+    if (!flight) return p;
+    const result<state<T>> s = flight->at_distance(distance);
+    if (!s) return p;
+    p.reached = true;
+    p.at = *s;
+    p.miss = T(frame.up.dot(vec3<T>(s->position - target)));
+    const vec3<T> off = s->position - launch;
+    const vec3<T> off_level = off - T(frame.up.dot(off)) * frame.up;
+    p.drift = signed_angle(level, off_level, frame.up);
+    return p;
+  }
+};
+
+template <Real T>
+struct plane_roots {
+  std::optional<T> flat, lofted;
+  T best_elevation{}, best_miss{};
+};
+
+// For a fixed azimuth, the elevations whose flight passes the target's distance at the
+// target's height. The miss is taken as unimodal in the elevation on
+// [line of sight, pi/2): Boost.Math's Brent finds its peak (coarsely first, fully when
+// the peak is near zero), TOMS 748 the roots on each side.
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<plane_roots<T>> plane_solve(const shooter<M>& sh, const T& azimuth, const T& speed,
+                                                 const T& tol) {
+  using std::atan2;
+  const T top = half_pi<T>() * (T(1) - T(1) / T(1 << 20));
+  auto miss = [&](const T& e) { return sh.probe(e, azimuth, speed).miss; };
+  T lo = atan2(sh.rise, sh.distance);
+  T f_lo = miss(lo);
+  if (!(f_lo < T(0))) {  // an updraft can lift the line of sight; open the search downwards
+    lo = -top;
+    f_lo = miss(lo);
+  }
+  const T f_top = miss(top);
+  auto neg = [&](const T& e) { return T(-miss(e)); };
+  result<std::pair<T, T>> peak = brent_min(neg, lo, top, sh.opts.max_iterations, 12, "aim: peak search did not converge");
+  if (!peak) return unexpected<error>(peak.error());
+  if (-peak->second < T(0)) {
+    peak = brent_min(neg, lo, top, sh.opts.max_iterations, std::numeric_limits<T>::digits / 2,
+                     "aim: peak search did not converge");
+    if (!peak) return unexpected<error>(peak.error());
+  }
+  plane_roots<T> out;
+  out.best_elevation = peak->first;
+  out.best_miss = -peak->second;
+  if (out.best_miss < -tol) return out;
+  if (out.best_miss <= T(0)) {  // within the tolerance: the two solutions merge
+    out.flat = out.best_elevation;
+    out.lofted = out.best_elevation;
+    return out;
+  }
+  if (f_lo < T(0)) {
+    const result<T> r = bracketed_root(miss, lo, out.best_elevation, f_lo, out.best_miss, sh.opts.max_iterations,
+                                       "aim: flat root did not converge");
+    if (!r) return unexpected<error>(r.error());
+    out.flat = *r;
+  }
+  if (f_top < T(0)) {
+    const result<T> r = bracketed_root(miss, out.best_elevation, top, out.best_miss, f_top,
+                                       sh.opts.max_iterations, "aim: lofted root did not converge");
+    if (!r) return unexpected<error>(r.error());
+    out.lofted = *r;
+  }
+  return out;
+}
+
+// Azimuth correction under a crosswind: the drift (bearing of the arrival minus bearing
+// of the target) is driven to zero by secant steps in the azimuth. Boost.Math has no
+// unbracketed secant, and no bracket is known in advance; the drift map is a strong
+// contraction (its slope is of order wind/speed), so each step starts from the plain
+// fixed-point step az - drift and the secant only accelerates it, falling back whenever
+// its step is not smaller than the last. Capped by opts.max_azimuth_iterations.
+template <class Solve, Real T>
+[[nodiscard]] auto correct_azimuth(Solve&& solve_at, const T& bearing, const T& distance, const T& tol, int cap)
+    -> decltype(solve_at(bearing)) {
+  using std::abs;
+  using R = decltype(solve_at(bearing));
+  T az = bearing;
+  R cur = solve_at(az);
+  if (!cur) return cur;
+  T prev_az = az;
+  T prev_drift{};
+  bool have_prev = false;
+  for (int i = 0; i < cap; ++i) {
+    const T drift = cur->drift;
+    if (abs(drift) * distance <= tol) return cur;
+    T next = az - drift;
+    if (have_prev && drift != prev_drift) {
+      const T secant = az - drift * (az - prev_az) / (drift - prev_drift);
+      if (abs(T(secant - az)) <= abs(drift) * T(2)) next = secant;
+    }
+    prev_az = az;
+    prev_drift = drift;
+    have_prev = true;
+    az = next;
+    cur = solve_at(az);
+    if (!cur) return cur;
+  }
+  if (abs(cur->drift) * distance <= tol) return cur;
+  return fail(errc::no_convergence, "crosswind azimuth correction did not converge, drift [rad]", cur->drift);
+}
+
+// The out_of_reach error of an aim: carries the farthest distance reachable at the
+// target's height along the target's bearing.
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] error out_of_reach_error(const M& model, const medium<T>& air, const aim_request<T>& req,
+                                       const T& bearing, const solve_options<T>& o) {
+  const farthest_request<T> fr{req.launch_point, req.speed, bearing, height(req.target, air)};
+  const result<farthest_shot<T>> far = farthest_elevation(model, air, fr, o);
+  const long double reach = far ? static_cast<long double>(far->range) : 0.0L;
+  error e(errc::out_of_reach, "target out of reach at this speed; farthest at its height [m]", reach);
+  e.with_detail_value(reach);
+  return e;
+}
+
+template <Real T>
+struct branch_hit {
+  T elevation, azimuth, drift;
+  probe_result<T> shot;
+};
+
+/// The any-model aim: fixed-azimuth elevation roots, then a crosswind correction per
+/// branch. Public through `aim()`; callable directly to check the closed forms.
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<aim_solutions<T>> aim_direct(const M& model, const medium<T>& air, const aim_frame<T>& frame,
+                                                  const aim_request<T>& req, const solve_options<T>& o) {
+  using std::abs;
+  using std::sqrt;
+  const shooter<M> sh = shooter<M>::make(model, air, frame, o, req.launch_point, req.target);
+  const T scale = sqrt(T((req.target - req.launch_point).squaredNorm()));
+  const T tol = miss_tolerance(o, scale);
+  aim_solutions<T> out;
+  if (!(sh.distance > scale * T(1000) * epsilon<T>())) {
+    // Straight above or below: vertical shots, if the air has no horizontal wind.
+    const vec3<T> wl = air.wind - T(frame.up.dot(air.wind)) * frame.up;
+    if (wl.squaredNorm() > T(0))
+      return fail(errc::invalid_argument, "target straight above or below the launch under a horizontal wind");
+    const T h = height(req.target, air);
+    for (int b = 0; b < 2; ++b) {
+      const T elev = (b == 0 && sh.rise < T(0)) ? T(-half_pi<T>()) : half_pi<T>();
+      const vec3<T> v = req.speed * frame.direction(elev, sh.bearing);
+      const auto flight = fly(model, air, shot<T>{req.launch_point, v}, o.flight);
+      if (!flight) return unexpected<error>(flight.error());
+      const side branch = (b == 0 && sh.rise > T(0)) ? side::rising : side::falling;
+      const result<state<T>> c = flight->crossing(h, branch);
+      if (!c) {
+        if (b == 0 && c.error() == errc::never_reaches) {
+          const result<state<T>> a = flight->apex();
+          error e(errc::out_of_reach, "target above the highest reachable point");
+          if (a) e.with_detail_value(static_cast<long double>(height(a->position, air) - height(req.launch_point, air)));
+          return unexpected<error>(e);
+        }
+        return unexpected<error>(c.error());
+      }
+      const result<aim_solution<T>> s = complete(model, air, frame, req.launch_point, v, c->time, o);
+      if (!s) return unexpected<error>(s.error());
+      (b == 0 ? out.flat : out.lofted) = *s;
+    }
+    return out;
+  }
+  const result<plane_roots<T>> first = plane_solve(sh, sh.bearing, req.speed, tol);
+  if (!first) return unexpected<error>(first.error());
+  if (!first->flat && !first->lofted) {
+    return unexpected<error>(out_of_reach_error(model, air, req, sh.bearing, o));
+  }
+  for (int b = 0; b < 2; ++b) {
+    const std::optional<T>& start = b == 0 ? first->flat : first->lofted;
+    if (!start) continue;
+    probe_result<T> p0 = sh.probe(*start, sh.bearing, req.speed);
+    result<branch_hit<T>> hit = branch_hit<T>{*start, sh.bearing, p0.drift, p0};
+    if (abs(p0.drift) * sh.distance > tol) {
+      auto solve_at = [&](const T& az) -> result<branch_hit<T>> {
+        const result<plane_roots<T>> r = plane_solve(sh, az, req.speed, tol);
+        if (!r) return unexpected<error>(r.error());
+        const std::optional<T>& e = b == 0 ? r->flat : r->lofted;
+        if (!e) return fail(errc::out_of_reach, "target out of reach under this crosswind");
+        const probe_result<T> p = sh.probe(*e, az, req.speed);
+        return branch_hit<T>{*e, az, p.drift, p};
+      };
+      hit = correct_azimuth(solve_at, sh.bearing, sh.distance, tol, o.max_azimuth_iterations);
+    }
+    if (!hit) return unexpected<error>(hit.error());
+    const result<aim_solution<T>> s =
+        complete(model, air, frame, req.launch_point, hit->shot.velocity, hit->shot.at.time, o);
+    if (!s) return unexpected<error>(s.error());
+    (b == 0 ? out.flat : out.lofted) = *s;
+  }
+  return out;
+}
+
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<aim_solutions<T>> aim_closed(const M& model, const medium<T>& air, const aim_frame<T>& frame,
+                                                  const aim_request<T>& req, const solve_options<T>& o) {
+  const vec3<T> offset = req.target - req.launch_point;
+  const time_form<T> f = make_time_form(model_traits<M>::linear_rate(model), air, offset, vec3<T>(vec3<T>::Zero()));
+  const result<time_roots<T>> r = time_form_roots(f, req.speed, time_scale(offset, air), o.max_iterations);
+  if (!r) {
+    if (r.error() != errc::out_of_reach) return unexpected<error>(r.error());
+    const shooter<M> sh = shooter<M>::make(model, air, frame, o, req.launch_point, req.target);
+    return unexpected<error>(out_of_reach_error(model, air, req, sh.bearing, o));
+  }
+  aim_solutions<T> out;
+  const result<aim_solution<T>> a =
+      complete(model, air, frame, req.launch_point, f.velocity(r->flat), r->flat, o);
+  if (!a) return unexpected<error>(a.error());
+  out.flat = *a;
+  if (r->merged) {
+    out.lofted = *a;
+    return out;
+  }
+  const result<aim_solution<T>> b =
+      complete(model, air, frame, req.launch_point, f.velocity(r->lofted), r->lofted, o);
+  if (!b) return unexpected<error>(b.error());
+  out.lofted = *b;
+  return out;
+}
+
+}  // namespace detail
+
+/// Every launch direction at `req.speed` whose flight passes through `req.target`: the
+/// flat solution (shorter flight) and the lofted one, with elevation, azimuth, time of
+/// flight and arrival state. Under a crosswind the azimuth is corrected so that the body
+/// still arrives at the target. Vacuum and linear drag are solved exactly through the
+/// time of flight (see `detail::time_form`, any wind); other models by root finding on
+/// `fly()` (`detail::aim_direct`). Solutions pass within `opts.tolerance` (default 64 ulp
+/// of the problem's size) of the target when flown forward.
+///
+/// Errors: `invalid_argument` (non-finite input, speed <= 0, target at the launch point,
+/// no gravity); `out_of_reach` when no direction reaches, with `detail_value()` the
+/// farthest distance [m] reachable at the target's height in the target's direction;
+/// `no_convergence` if an iteration budget runs out.
+/// \code
+///   auto s = lob::aim(lob::linear_drag<double>{0.1}, air, {{0, 0, 0}, {40, 0, 3}, 30.0});
+///   if (s && s->flat) launch(s->flat->velocity);
+/// \endcode
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<aim_solutions<T>> aim(const M& model, const medium<T>& air, const aim_request<T>& req,
+                                           const solve_options<T>& o = {}) {
+  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+  if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
+  if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
+    return unexpected<error>(ok.error());
+  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+  if (!frame) return unexpected<error>(frame.error());
+  if constexpr (model_traits<M>::closed_form) {
+    return detail::aim_closed(model, air, *frame, req, o);
+  } else {
+    return detail::aim_direct(model, air, *frame, req, o);
+  }
+}
+
+namespace detail {
+
+template <Real T>
+struct speed_hit {
+  T speed, drift;
+  probe_result<T> shot;
+};
+
+// The speed at a fixed elevation and azimuth whose flight passes the target's distance
+// at its height: the miss grows with speed towards the line of sight, so TOMS 748 on a
+// bracket opened from the vacuum speed by halving and doubling.
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<speed_hit<T>> speed_at(const shooter<M>& sh, const T& elevation, const T& azimuth) {
+  using std::cos;
+  using std::sqrt;
+  using std::tan;
+  const T g = sqrt(T(sh.air.gravity.squaredNorm()));
+  const T c = cos(elevation);
+  const T lift = sh.distance * T(tan(elevation)) - sh.rise;  // > 0: above the line of sight
+  // Vacuum: u^2 = g d^2 / (2 cos^2 e (d tan e - H)) (any mechanics textbook).
+  T lo = sh.distance / c * sqrt(T(g / (2 * lift)));
+  auto miss = [&](const T& u) { return sh.probe(elevation, azimuth, u).miss; };
+  T f_lo = miss(lo);
+  for (int i = 0; !(f_lo < T(0)); ++i) {
+    if (i > 200) return fail(errc::no_convergence, "speed for elevation: no lower bracket");
+    lo /= 2;
+    f_lo = miss(lo);
+  }
+  T hi = lo * 2;
+  T f_hi = miss(hi);
+  for (int i = 0; !(f_hi > T(0)); ++i) {
+    if (i > 200 || !is_finite(hi)) return fail(errc::out_of_reach, "no speed makes this elevation reach the target");
+    lo = hi;
+    f_lo = f_hi;
+    hi *= 2;
+    f_hi = miss(hi);
+  }
+  const result<T> u = bracketed_root(miss, lo, hi, f_lo, f_hi, sh.opts.max_iterations,
+                                     "speed for elevation did not converge");
+  if (!u) return unexpected<error>(u.error());
+  const probe_result<T> p = sh.probe(elevation, azimuth, *u);
+  return speed_hit<T>{*u, p.drift, p};
+}
+
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<aim_solution<T>> speed_direct(const shooter<M>& sh, const T& elevation) {
+  using std::abs;
+  const T tol = miss_tolerance(sh.opts, T(sh.distance + abs(sh.rise)));
+  result<speed_hit<T>> hit = speed_at(sh, elevation, sh.bearing);
+  if (hit && abs(hit->drift) * sh.distance > tol) {
+    auto solve_at = [&](const T& az) { return speed_at(sh, elevation, az); };
+    hit = correct_azimuth(solve_at, sh.bearing, sh.distance, tol, sh.opts.max_azimuth_iterations);
+  }
+  if (!hit) return unexpected<error>(hit.error());
+  return complete(sh.model, sh.air, sh.frame, sh.launch, hit->shot.velocity, hit->shot.at.time, sh.opts);
+}
+
+}  // namespace detail
+
+/// The launch speed that makes a flight at `req.elevation` pass through `req.target`
+/// (azimuth corrected for a crosswind), with the full solution. Any model, by TOMS 748
+/// on the speed. Errors: `invalid_argument` for bad input, a target straight above or
+/// below, or an elevation outside (-pi/2, pi/2); `out_of_reach` for an elevation at or
+/// below the line of sight to the target (no speed can get there).
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<aim_solution<T>> speed_for_elevation(const M& model, const medium<T>& air,
+                                                          const elevation_request<T>& req,
+                                                          const solve_options<T>& o = {}) {
+  using std::abs;
+  using std::atan2;
+  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+  if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
+    return unexpected<error>(ok.error());
+  if (!is_finite(req.elevation) || !(abs(req.elevation) < detail::half_pi<T>()))
+    return fail(errc::invalid_argument, "elevation must be finite and inside (-pi/2, pi/2)", req.elevation);
+  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+  if (!frame) return unexpected<error>(frame.error());
+  const detail::shooter<M> sh = detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
+  if (!(sh.distance > T(0)))
+    return fail(errc::invalid_argument, "target straight above or below: the elevation must be vertical");
+  const T sight = atan2(sh.rise, sh.distance);
+  if (!(req.elevation > sight))
+    return fail(errc::out_of_reach, "elevation is at or below the line of sight to the target, which is [rad]",
+                sight);
+  return detail::speed_direct(sh, req.elevation);
+}
+
+/// The smallest launch speed that reaches `req.target`, with its elevation, azimuth and
+/// arrival. Vacuum and linear drag: the minimum of the needed speed over the time of
+/// flight (exact, any wind). Other models: Brent's method over the elevation of
+/// `speed_for_elevation` (elevation to about half the digits of T, speed to nearly all).
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<aim_solution<T>> least_speed(const M& model, const medium<T>& air, const target_request<T>& req,
+                                                  const solve_options<T>& o = {}) {
+  using std::atan2;
+  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+  if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
+    return unexpected<error>(ok.error());
+  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+  if (!frame) return unexpected<error>(frame.error());
+  if constexpr (model_traits<M>::closed_form) {
+    const vec3<T> offset = req.target - req.launch_point;
+    const detail::time_form<T> f =
+        detail::make_time_form(model_traits<M>::linear_rate(model), air, offset, vec3<T>(vec3<T>::Zero()));
+    const result<T> t = detail::least_time(f, detail::time_scale(offset, air), o.max_iterations);
+    if (!t) return unexpected<error>(t.error());
+    return detail::complete(model, air, *frame, req.launch_point, f.velocity(*t), *t, o);
+  } else {
+    const detail::shooter<M> sh = detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
+    if (!(sh.distance > T(0)))
+      return fail(errc::invalid_argument, "target straight above or below: least speed needs a closed-form model");
+    const T sight = atan2(sh.rise, sh.distance);
+    const T top = detail::half_pi<T>() * (T(1) - T(1) / T(1 << 20));
+    const T big = std::numeric_limits<T>::max() / T(16);
+    auto need = [&](const T& e) {
+      const result<detail::speed_hit<T>> h = detail::speed_at(sh, e, sh.bearing);
+      return h ? h->speed : big;
+    };
+    const result<std::pair<T, T>> m =
+        detail::brent_min(need, T(sight + (top - sight) / T(1 << 20)), top, o.max_iterations,
+                          std::numeric_limits<T>::digits / 2, "least speed: Brent search did not converge");
+    if (!m) return unexpected<error>(m.error());
+    return detail::speed_direct(sh, m->first);
+  }
+}
+
+}  // namespace lob

@@ -1,0 +1,198 @@
+#pragma once
+/// \file lob/solve/common.hpp
+/// What every inverse problem in `solve/` shares: the aiming frame (how elevation and
+/// azimuth are measured for any gravity direction), the `Trajectory` concept the solvers
+/// are written against, the solver options, and small internal helpers.
+
+#include <cstdint>
+#include <optional>
+#include <type_traits>
+#include <utility>
+
+#include <Eigen/Geometry>
+#include <boost/math/constants/constants.hpp>
+#include <boost/math/tools/minima.hpp>
+#include <boost/math/tools/roots.hpp>
+#include <boost/math/tools/toms748_solve.hpp>
+
+#include "lob/core/flight_types.hpp"
+#include "lob/core/options.hpp"
+#include "lob/core/result.hpp"
+#include "lob/detail/math.hpp"
+#include "lob/flight.hpp"
+#include "lob/models/traits.hpp"
+
+namespace lob {
+
+/// A flight the solvers can question: the query interface `lob::fly()` returns for every
+/// model. Heights are absolute (along "up" from the world origin), distances horizontal
+/// from the launch point.
+template <class F, class T>
+concept Trajectory = Real<T> && requires(const F& f, const T& x, side branch) {
+  { f.at(x) } -> std::convertible_to<result<state<T>>>;
+  { f.apex() } -> std::convertible_to<result<state<T>>>;
+  { f.crossing(x, branch) } -> std::convertible_to<result<state<T>>>;
+  { f.landing(x) } -> std::convertible_to<result<state<T>>>;
+  { f.range(x) } -> std::convertible_to<result<T>>;
+  { f.at_distance(x) } -> std::convertible_to<result<state<T>>>;
+};
+
+/// The trajectory type `lob::fly()` gives for model `M`.
+template <DragModel M>
+using trajectory_of = typename decltype(fly(std::declval<const M&>(),
+                                            std::declval<const medium<scalar_of<M>>&>(),
+                                            std::declval<const shot<scalar_of<M>>&>()))::value_type;
+
+/// How elevation and azimuth are measured, for any direction of gravity.
+///
+/// `up` is minus gravity's direction. `ahead` is the caller's reference direction with its
+/// vertical part removed, normalised (world +x by default; if the reference is within
+/// about 0.06 degrees of vertical, world +x, then world +y, is used instead). `left` is
+/// up x ahead. Elevation is the angle above the horizontal plane in [-pi/2, pi/2];
+/// azimuth is measured in that plane from `ahead` towards `left`, in (-pi, pi]. For the
+/// default z-up medium and reference +x this is the usual convention: azimuth from +x
+/// towards +y, the same as `lob::launch_velocity`.
+template <Real T>
+struct aim_frame {
+  vec3<T> up = vec3<T>(T(0), T(0), T(1));
+  vec3<T> ahead = vec3<T>(T(1), T(0), T(0));
+  vec3<T> left = vec3<T>(T(0), T(1), T(0));
+
+  /// The frame of `air` with azimuth 0 along `reference` (see above). Gravity must be
+  /// finite and non-zero, `reference` finite.
+  [[nodiscard]] static result<aim_frame> make(const medium<T>& air,
+                                              const vec3<T>& reference = vec3<T>(T(1), T(0), T(0))) {
+    using std::sqrt;
+    if (!is_finite(air.gravity)) return fail(errc::invalid_argument, "gravity must be finite");
+    const T g = sqrt(T(air.gravity.squaredNorm()));
+    if (!(g > T(0))) return fail(errc::invalid_argument, "aiming needs gravity, got |g| =", g);
+    if (!is_finite(reference))
+      return fail(errc::invalid_argument, "azimuth reference direction must be finite");
+    aim_frame f;
+    f.up = vec3<T>(-air.gravity / g);
+    const vec3<T> candidates[3] = {reference, vec3<T>(T(1), T(0), T(0)), vec3<T>(T(0), T(1), T(0))};
+    for (const vec3<T>& c : candidates) {
+      const T n = sqrt(T(c.squaredNorm()));
+      if (!(n > T(0))) continue;
+      const vec3<T> h = c - T(f.up.dot(c)) * f.up;
+      const T hn = sqrt(T(h.squaredNorm()));
+      if (hn > n / T(1000)) {
+        f.ahead = vec3<T>(h / hn);
+        f.left = vec3<T>(f.up.cross(f.ahead));
+        return f;
+      }
+    }
+    return fail(errc::invalid_argument, "azimuth reference direction must be non-zero");
+  }
+
+  /// The unit launch direction for an elevation and an azimuth [rad].
+  [[nodiscard]] vec3<T> direction(const T& elevation, const T& azimuth) const {
+    using std::cos;
+    using std::sin;
+    const T c = cos(elevation);
+    return vec3<T>(up * T(sin(elevation)) + ahead * T(c * cos(azimuth)) + left * T(c * sin(azimuth)));
+  }
+
+  /// Elevation of a vector above the horizontal plane [rad].
+  [[nodiscard]] T elevation_of(const vec3<T>& v) const {
+    using std::atan2;
+    using std::sqrt;
+    const T a = ahead.dot(v);
+    const T l = left.dot(v);
+    return atan2(T(up.dot(v)), T(sqrt(T(a * a + l * l))));
+  }
+
+  /// Azimuth of a vector's horizontal part [rad], 0 for a vertical vector.
+  [[nodiscard]] T azimuth_of(const vec3<T>& v) const {
+    using std::atan2;
+    const T a = ahead.dot(v);
+    const T l = left.dot(v);
+    if (a == T(0) && l == T(0)) return T(0);
+    return atan2(l, a);
+  }
+};
+
+/// Settings shared by the solvers. Every iteration is capped; exhausting a cap is
+/// `errc::no_convergence`.
+template <Real T>
+struct solve_options {
+  /// How each trial flight is computed (integrated models only; closed forms ignore it).
+  flight_options<T> flight{};
+  /// Azimuth 0 points along this direction's horizontal part (see `aim_frame`).
+  vec3<T> reference = vec3<T>(T(1), T(0), T(0));
+  /// Iteration budget of each one-dimensional root or minimum search.
+  std::uintmax_t max_iterations = 200;
+  /// Budget of the outer azimuth correction under a crosswind.
+  int max_azimuth_iterations = 40;
+  /// Misses [m] below this count as hits when the flat and lofted solutions merge at
+  /// the edge of reach and when a crosswind correction stops; 0 picks 64 ulp of the
+  /// problem's length scale (|target - launch| + 1 m).
+  T tolerance = T(0);
+};
+
+namespace detail {
+
+template <Real T>
+[[nodiscard]] T half_pi() {
+  return boost::math::constants::half_pi<T>();
+}
+template <Real T>
+[[nodiscard]] T pi() {
+  return boost::math::constants::pi<T>();
+}
+
+/// Bits asked of Boost.Math's root finders: all of T but two.
+template <Real T>
+[[nodiscard]] int root_bits() {
+  return std::numeric_limits<T>::digits - 2;
+}
+
+/// The tolerance of a problem of length scale `scale` [m].
+template <Real T>
+[[nodiscard]] T miss_tolerance(const solve_options<T>& o, const T& scale) {
+  if (o.tolerance > T(0)) return o.tolerance;
+  return T(64) * epsilon<T>() * (scale + T(1));
+}
+
+/// TOMS 748 (Alefeld, Potra & Shi 1995; Boost.Math, non-throwing policy) on [lo, hi]
+/// where f changes sign; returns the middle of the final bracket, a few ulp wide.
+/// (Boost 1.74's Newton and Halley iterations take no policy and may throw, so lob's
+/// solvers use TOMS 748 throughout.)
+template <Real T, class F>
+[[nodiscard]] result<T> bracketed_root(F&& f, const T& lo, const T& hi, const T& f_lo, const T& f_hi,
+                                       std::uintmax_t max_iter, const char* what) {
+  using std::abs;
+  if (f_lo == T(0)) return lo;
+  if (f_hi == T(0)) return hi;
+  if ((f_lo > T(0)) == (f_hi > T(0)))
+    return fail(errc::no_convergence, what);  // callers only call with a sign change
+  std::uintmax_t iters = max_iter;
+  const boost::math::tools::eps_tolerance<T> tol(root_bits<T>());
+  const std::pair<T, T> r =
+      boost::math::tools::toms748_solve(f, lo, hi, f_lo, f_hi, tol, iters, no_throw_policy{});
+  if (iters >= max_iter) return fail(errc::no_convergence, what, static_cast<long double>(iters));
+  return T((r.first + r.second) / 2);
+}
+
+/// Boost.Math's Brent minimiser of f on [lo, hi] with half of T's bits (the best it can
+/// do); returns (argmin, min) or `no_convergence` when the budget runs out.
+template <Real T, class F>
+[[nodiscard]] result<std::pair<T, T>> brent_min(F&& f, const T& lo, const T& hi, std::uintmax_t max_iter,
+                                                int bits, const char* what) {
+  std::uintmax_t iters = max_iter;
+  const std::pair<T, T> r = boost::math::tools::brent_find_minima(f, lo, hi, bits, iters);
+  if (iters >= max_iter) return fail(errc::no_convergence, what, static_cast<long double>(iters));
+  return r;
+}
+
+/// Signed angle [rad] from horizontal vector a to horizontal vector b about `up`.
+template <Real T>
+[[nodiscard]] T signed_angle(const vec3<T>& a, const vec3<T>& b, const vec3<T>& up) {
+  using std::atan2;
+  const T s = up.dot(a.cross(b));
+  const T c = a.dot(b);
+  return atan2(s, c);
+}
+
+}  // namespace detail
+}  // namespace lob
