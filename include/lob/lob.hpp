@@ -26,3 +26,6 @@
 #include "lob/integrate/dormand_prince.hpp"
 #include "lob/integrate/fixed_step.hpp"
 #include "lob/integrate/integrated_flight.hpp"
+#include "lob/solve/common.hpp"
+#include "lob/solve/farthest.hpp"
+#include "lob/solve/aim.hpp"
