@@ -29,3 +29,7 @@
 #include "lob/solve/common.hpp"
 #include "lob/solve/farthest.hpp"
 #include "lob/solve/aim.hpp"
+#include "lob/integrate/hodograph.hpp"
+#include "lob/physics/correlated_drag.hpp"
+#include "lob/physics/drag_model_choice.hpp"
+#include "lob/physics/calibrate.hpp"

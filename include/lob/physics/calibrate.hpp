@@ -1,0 +1,338 @@
+#pragma once
+/// \file lob/physics/calibrate.hpp
+/// Calibration: fit a drag model's parameter (and optionally each flight's launch speed and
+/// elevation) to measured times and positions of one or several flights, by nonlinear
+/// least squares (Levenberg–Marquardt, Eigen's unsupported LevenbergMarquardt module),
+/// with the standard errors of the estimates, the residuals, and an optional robust loss.
+///
+/// Heap use: Eigen's Levenberg–Marquardt works on dynamic-size matrices, and the result
+/// holds the residuals in a `std::vector`. That is accepted here because calibration is an
+/// offline fitting tool, not part of the flight core; `fly()` and every trajectory query
+/// stay allocation-free. No exceptions are thrown (Eigen reports through status codes).
+
+#include <cstddef>
+#include <cstdint>
+#include <span>
+#include <type_traits>
+#include <utility>
+#include <vector>
+
+#include <Eigen/Dense>
+#include <unsupported/Eigen/LevenbergMarquardt>
+
+#include "lob/core/flight_types.hpp"
+#include "lob/core/options.hpp"
+#include "lob/core/result.hpp"
+#include "lob/detail/math.hpp"
+#include "lob/flight.hpp"
+
+namespace lob {
+
+/// One measurement: time since launch [s] and measured position [m].
+template <Real T>
+struct sample {
+  T time{};
+  vec3<T> position = vec3<T>::Zero();
+};
+
+/// One measured flight: the nominal launch (position, and velocity whose speed and
+/// elevation may be refitted; its azimuth is kept) and the samples taken of it.
+template <Real T>
+struct measured_flight {
+  shot<T> launch{};
+  std::span<const sample<T>> samples{};
+};
+
+/// How residuals are weighed. `squared` is ordinary least squares. `huber` and `cauchy`
+/// limit the pull of outliers: each residual component r [m] enters as rho(r) with scale
+/// `fit_options::loss_scale` delta, rho = r^2/2 for |r| <= delta and delta (|r| - delta/2)
+/// beyond (Huber 1964), or rho = (delta^2/2) log(1 + (r/delta)^2) (Cauchy/Lorentz).
+enum class fit_loss { squared, huber, cauchy };
+
+/// Settings of `calibrate`.
+template <Real T>
+struct fit_options {
+  bool fit_speed = false;      ///< also fit each flight's launch speed
+  bool fit_elevation = false;  ///< also fit each flight's launch elevation above the horizon
+  fit_loss loss = fit_loss::squared;
+  T loss_scale = T(1) / T(100);      ///< delta [m] of the robust losses; about 2-3 noise sigmas
+  std::int64_t max_evaluations = 4000;  ///< Levenberg–Marquardt's budget of residual evaluations
+  flight_options<T> flight{};         ///< how integrated models are flown
+};
+
+/// What `calibrate` found. Standard errors come from the covariance s^2 (J^T J)^-1 at the
+/// solution, s^2 = (sum of squared residuals) / (m - n) for m residual components and n
+/// unknowns: right to first order for small, independent, equal-variance noise. With a
+/// robust loss they are those of the reweighted problem (an approximation).
+template <Real T>
+struct fit_result {
+  T parameter{};        ///< the drag parameter (rate, coefficient, ...) as `make` takes it
+  T parameter_error{};  ///< its standard error
+  std::vector<T> speeds, speed_errors;          ///< per flight [m/s], when fitted
+  std::vector<T> elevations, elevation_errors;  ///< per flight [rad], when fitted
+  std::vector<vec3<T>> residuals;               ///< measured minus predicted, sample order [m]
+  T rms{};                 ///< root mean square of the residual components [m]
+  T noise_sigma{};         ///< s, the estimated noise per component [m]
+  std::int64_t evaluations = 0;  ///< residual evaluations used
+  std::int64_t iterations = 0;   ///< Levenberg–Marquardt iterations
+};
+
+namespace detail {
+
+// The robust transform r -> r' with r'^2 = 2 rho(r), sign kept: least squares on r' then
+// minimises sum rho(r) (the square-root form of an M-estimator).
+template <Real T>
+[[nodiscard]] T robust_residual(const T& r, fit_loss loss, const T& delta) {
+  using std::abs;
+  using std::log;
+  using std::sqrt;
+  const T sign = r < T(0) ? T(-1) : T(1);
+  switch (loss) {
+    case fit_loss::squared: return r;
+    case fit_loss::huber:
+      if (abs(r) <= delta) return r;
+      return T(sign * sqrt(T(T(2) * delta * abs(r) - delta * delta)));
+    case fit_loss::cauchy: {
+      const T u = r / delta;
+      return T(sign * delta * sqrt(T(detail::log1p(T(u * u)))));
+    }
+  }
+  return r;
+}
+
+template <Real T, class MakeModel>
+class calibration_problem : public Eigen::DenseFunctor<T> {
+ public:
+  using base = Eigen::DenseFunctor<T>;
+  using typename base::InputType;
+  using typename base::JacobianType;
+  using typename base::ValueType;
+
+  calibration_problem(const MakeModel& make, std::span<const measured_flight<T>> flights, const medium<T>& air,
+                      const fit_options<T>& options, int unknowns, int values)
+      : base(unknowns, values), make_(make), flights_(flights), air_(air), options_(options) {}
+
+  // Raw residuals (measured - predicted) for the unknowns x; false (with failure_ set) if a
+  // flight could not be flown.
+  bool raw(const InputType& x, std::vector<vec3<T>>& out) const {
+    using std::cos;
+    using std::exp;
+    using std::sin;
+    using std::sqrt;
+    out.clear();
+    const T p = exp(T(x(0)));
+    const auto model = make_(p);
+    const vec3<T> u = up(air_);
+    int k = 1;
+    for (const measured_flight<T>& f : flights_) {
+      shot<T> launch = f.launch;
+      if (options_.fit_speed || options_.fit_elevation) {
+        const vec3<T> v0 = f.launch.velocity;
+        const vec3<T> level = horizontal(v0, air_);
+        const T level_speed = sqrt(T(level.squaredNorm()));
+        const T speed0 = sqrt(T(v0.squaredNorm()));
+        T speed = speed0;
+        T elevation = T(0);
+        using std::atan2;
+        elevation = atan2(T(u.dot(v0)), level_speed);
+        if (options_.fit_speed) speed = x(k++);
+        if (options_.fit_elevation) elevation = x(k++);
+        const vec3<T> dir = level_speed > T(0) ? vec3<T>(level / level_speed) : vec3<T>(vec3<T>::Zero());
+        launch.velocity = vec3<T>(speed * (T(cos(elevation)) * dir + T(sin(elevation)) * u));
+      }
+      const auto flight = fly(model, air_, launch, options_.flight);
+      if (!flight) {
+        failure_ = flight.error();
+        return false;
+      }
+      for (const sample<T>& s : f.samples) {
+        const result<state<T>> at = flight->at(s.time);
+        if (!at) {
+          failure_ = at.error();
+          return false;
+        }
+        out.push_back(vec3<T>(s.position - at->position));
+      }
+    }
+    return true;
+  }
+
+  int operator()(const InputType& x, ValueType& fvec) const {
+    ++evaluations_;
+    if (!raw(x, scratch_)) return -1;
+    for (std::size_t i = 0; i < scratch_.size(); ++i)
+      for (int c = 0; c < 3; ++c)
+        fvec(static_cast<Eigen::Index>(3 * i) + c) =
+            robust_residual(T(scratch_[i](c)), options_.loss, options_.loss_scale);
+    return 0;
+  }
+
+  // Central differences, step cbrt(eps) * max(|x_i|, 1): error O(h^2) ~ eps^(2/3).
+  int df(const InputType& x, JacobianType& jac) const {
+    using std::abs;
+    using std::cbrt;
+    const T h0 = cbrt(epsilon<T>());
+    InputType xp = x;
+    ValueType fp(this->values()), fm(this->values());
+    for (Eigen::Index j = 0; j < x.size(); ++j) {
+      const T h = h0 * (abs(T(x(j))) > T(1) ? T(abs(T(x(j)))) : T(1));
+      xp(j) = x(j) + h;
+      if ((*this)(xp, fp) != 0) return -1;
+      xp(j) = x(j) - h;
+      if ((*this)(xp, fm) != 0) return -1;
+      xp(j) = x(j);
+      jac.col(j) = (fp - fm) / T(2 * h);
+    }
+    return 0;
+  }
+
+  const error& failure() const { return failure_; }
+  std::int64_t evaluations() const { return evaluations_; }
+
+ private:
+  const MakeModel& make_;
+  std::span<const measured_flight<T>> flights_;
+  medium<T> air_;
+  fit_options<T> options_;
+  mutable std::vector<vec3<T>> scratch_;
+  mutable error failure_{};
+  mutable std::int64_t evaluations_ = 0;
+};
+
+}  // namespace detail
+
+/// Fits the drag parameter p of a model family to measured flights. `make(p)` builds the
+/// model for a parameter p > 0 (for instance `[](double k) { return lob::linear_drag<double>{k}; }`
+/// or a quadratic_drag coefficient); every flight is flown with `lob::fly(model, air,
+/// launch, options.flight)` and compared with its samples through `trajectory.at(t)`.
+/// `initial` is a starting guess of p (> 0); p is fitted on a log scale, which keeps it
+/// positive, and its standard error is carried back by the delta method (p times the
+/// error of log p). With `fit_speed` / `fit_elevation` each flight's launch speed and
+/// elevation are unknowns too, started from its nominal launch.
+///
+/// Errors: `invalid_argument` for a bad guess, sample or option, or a flight that cannot
+/// be flown (the model's own error is passed on); `too_few_samples` when there are not
+/// more residual components (3 per sample) than unknowns, or a flight without samples;
+/// `no_convergence` when Levenberg–Marquardt runs out of evaluations or the unknowns are
+/// not identifiable from the data (singular J^T J).
+template <Real T, class MakeModel>
+[[nodiscard]] result<fit_result<T>> calibrate(const MakeModel& make, const T& initial,
+                                              std::span<const measured_flight<T>> flights, const medium<T>& air,
+                                              const fit_options<T>& options = {}) {
+  using std::exp;
+  using std::log;
+  using std::sqrt;
+  using model_type = std::remove_cvref_t<decltype(make(initial))>;
+  static_assert(DragModel<model_type>, "make(p) must return a lob::DragModel");
+  if (!is_finite(initial) || !(initial > T(0)))
+    return fail(errc::invalid_argument, "initial drag parameter must be finite and > 0", initial);
+  if (flights.empty()) return fail(errc::too_few_samples, "calibration needs at least one flight");
+  if (options.max_evaluations < 1)
+    return fail(errc::invalid_argument, "max_evaluations must be >= 1", options.max_evaluations);
+  if (options.loss != fit_loss::squared && (!is_finite(options.loss_scale) || !(options.loss_scale > T(0))))
+    return fail(errc::invalid_argument, "robust loss scale must be finite and > 0 [m]", options.loss_scale);
+  std::size_t count = 0;
+  for (const measured_flight<T>& f : flights) {
+    if (f.samples.empty()) return fail(errc::too_few_samples, "every flight needs at least one sample");
+    if (!is_finite(f.launch.velocity) || !is_finite(f.launch.position))
+      return fail(errc::invalid_argument, "launch position and velocity must be finite");
+    if (options.fit_elevation && !(T(horizontal(f.launch.velocity, air).squaredNorm()) > T(0)))
+      return fail(errc::invalid_argument, "fitting the elevation needs a launch with a horizontal direction");
+    for (const sample<T>& s : f.samples) {
+      if (!is_finite(s.time) || s.time < T(0))
+        return fail(errc::invalid_argument, "sample time must be finite and >= 0 [s]", s.time);
+      if (!is_finite(s.position)) return fail(errc::invalid_argument, "sample position must be finite");
+    }
+    count += f.samples.size();
+  }
+  const int per_flight = (options.fit_speed ? 1 : 0) + (options.fit_elevation ? 1 : 0);
+  const int unknowns = 1 + per_flight * static_cast<int>(flights.size());
+  const int values = static_cast<int>(3 * count);
+  if (values <= unknowns)
+    return fail(errc::too_few_samples, "more residual components (3 per sample) than unknowns needed, samples",
+                count);
+
+  using problem_type = detail::calibration_problem<T, MakeModel>;
+  problem_type problem(make, flights, air, options, unknowns, values);
+  Eigen::Matrix<T, Eigen::Dynamic, 1> x(unknowns);
+  x(0) = log(initial);
+  {
+    int k = 1;
+    const vec3<T> u = up(air);
+    for (const measured_flight<T>& f : flights) {
+      using std::atan2;
+      const T level = sqrt(T(horizontal(f.launch.velocity, air).squaredNorm()));
+      if (options.fit_speed) x(k++) = sqrt(T(f.launch.velocity.squaredNorm()));
+      if (options.fit_elevation) x(k++) = atan2(T(u.dot(f.launch.velocity)), level);
+    }
+  }
+  Eigen::LevenbergMarquardt<problem_type> lm(problem);
+  lm.setMaxfev(static_cast<Eigen::Index>(options.max_evaluations));
+  const Eigen::LevenbergMarquardtSpace::Status status = lm.minimize(x);
+  namespace lms = Eigen::LevenbergMarquardtSpace;
+  if (status == lms::UserAsked) return unexpected<error>(problem.failure());
+  if (status == lms::ImproperInputParameters)
+    return fail(errc::invalid_argument, "Levenberg-Marquardt rejected the problem's inputs");
+  if (status == lms::TooManyFunctionEvaluation || status == lms::Running || status == lms::NotStarted)
+    return fail(errc::no_convergence, "fit did not converge within max_evaluations", options.max_evaluations);
+  // Statuses 1-4 converged by the tolerances; 6-8 stopped because no further reduction is
+  // possible at the precision of T, which is converged too.
+
+  typename problem_type::JacobianType jac(values, unknowns);
+  typename problem_type::ValueType fvec(values);
+  if (problem(x, fvec) != 0 || problem.df(x, jac) != 0) return unexpected<error>(problem.failure());
+  const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> normal = jac.transpose() * jac;
+  const Eigen::LDLT<Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic>> ldlt(normal);
+  const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> eye =
+      Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic>::Identity(unknowns, unknowns);
+  const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> covariance_unscaled = ldlt.solve(eye);
+  const T rss = fvec.squaredNorm();
+  const T s2 = rss / T(values - unknowns);
+  T smallest_pivot = T(0), largest_pivot = T(0);
+  for (Eigen::Index i = 0; i < unknowns; ++i) {
+    using std::abs;
+    const T d = abs(T(ldlt.vectorD()(i)));
+    if (i == 0 || d < smallest_pivot) smallest_pivot = d;
+    if (d > largest_pivot) largest_pivot = d;
+  }
+  if (ldlt.info() != Eigen::Success || !(smallest_pivot > T(100) * detail::epsilon<T>() * largest_pivot) ||
+      !is_finite(T(covariance_unscaled(0, 0))))
+    return fail(errc::no_convergence, "the unknowns are not identifiable from these samples (singular J^T J)");
+
+  fit_result<T> out;
+  out.parameter = exp(T(x(0)));
+  out.parameter_error = out.parameter * sqrt(T(s2 * covariance_unscaled(0, 0)));
+  int k = 1;
+  for (std::size_t f = 0; f < flights.size(); ++f) {
+    if (options.fit_speed) {
+      out.speeds.push_back(x(k));
+      out.speed_errors.push_back(sqrt(T(s2 * covariance_unscaled(k, k))));
+      ++k;
+    }
+    if (options.fit_elevation) {
+      out.elevations.push_back(x(k));
+      out.elevation_errors.push_back(sqrt(T(s2 * covariance_unscaled(k, k))));
+      ++k;
+    }
+  }
+  std::vector<vec3<T>> raw;
+  if (!problem.raw(x, raw)) return unexpected<error>(problem.failure());
+  T sum = T(0);
+  for (const vec3<T>& r : raw) sum += T(r.squaredNorm());
+  out.residuals = std::move(raw);
+  out.rms = sqrt(T(sum / T(values)));
+  out.noise_sigma = sqrt(s2);
+  out.evaluations = problem.evaluations();
+  out.iterations = static_cast<std::int64_t>(lm.iterations());
+  return out;
+}
+
+/// As above for a single flight.
+template <Real T, class MakeModel>
+[[nodiscard]] result<fit_result<T>> calibrate(const MakeModel& make, const T& initial,
+                                              const measured_flight<T>& flight, const medium<T>& air,
+                                              const fit_options<T>& options = {}) {
+  return calibrate(make, initial, std::span<const measured_flight<T>>(&flight, 1), air, options);
+}
+
+}  // namespace lob
