@@ -135,6 +135,12 @@ struct time_form {
     const values v = eval(t);
     return T(v.mm / (v.tau * v.tau));
   }
+  // (need2, d need2 / dt) = (|M|^2/tau^2, 2 H / tau^2).
+  [[nodiscard]] std::pair<T, T> need2_and_slope(const T& t) const {
+    const values v = eval(t);
+    const T t2 = v.tau * v.tau;
+    return {T(v.mm / t2), T(2 * (v.mm1 - v.mm * v.decay / v.tau) / t2)};
+  }
   // H = M.M' - |M|^2 e^-kt / tau, of the sign of F'.
   [[nodiscard]] T h_of(const T& t) const {
     const values v = eval(t);
@@ -172,12 +178,17 @@ template <Real T>
   return bracketed_root(h, lo, hi, f_lo, f_hi, max_iter, "least-speed time did not converge");
 }
 
-// A root of need2(t) = u2 in [lo, hi] (need2 - u2 changes sign), TOMS 748.
+// A root of need2(t) = u2 in [lo, hi] (need2 - u2 changes sign): safeguarded Newton
+// with the exact slope 2 H / tau^2, from `guess`.
 template <Real T>
 [[nodiscard]] result<T> meeting_time(const time_form<T>& f, const T& u2, const T& lo, const T& hi, const T& f_lo,
-                                     const T& f_hi, std::uintmax_t max_iter) {
-  return bracketed_root([&](const T& x) { return T(f.need2(x) - u2); }, lo, hi, f_lo, f_hi, max_iter,
-                        "meeting time did not converge");
+                                     const T& guess, std::uintmax_t max_iter) {
+  return safe_newton(
+      [&](const T& x) {
+        const std::pair<T, T> p = f.need2_and_slope(x);
+        return std::pair<T, T>(T(p.first - u2), p.second);
+      },
+      lo, hi, f_lo, guess, max_iter, "meeting time did not converge");
 }
 
 template <Real T>
@@ -200,40 +211,71 @@ struct time_roots {
   T flat, lofted, least;
   bool merged;
 };
+// Vacuum meeting times of a still target, the two roots in s = t^2 of
+// (g^2/4) s^2 - (u^2 - g H) s + |D|^2 = 0 (any mechanics textbook), the smaller one from
+// the product of the roots so that it does not cancel. False if out of reach.
+template <Real T>
+[[nodiscard]] bool vacuum_times(const vec3<T>& offset, const vec3<T>& gravity, const T& u, T& flat, T& lofted) {
+  using std::sqrt;
+  const T g2 = gravity.squaredNorm();
+  const T b = u * u + T(offset.dot(gravity));  // u^2 - g H
+  const T d2 = offset.squaredNorm();
+  const T disc = b * b - g2 * d2;
+  if (!(disc >= T(0)) || !(b > T(0))) return false;
+  const T big = 2 * (b + sqrt(disc)) / g2;
+  lofted = sqrt(big);
+  flat = sqrt(T(4 * d2 / (g2 * big)));
+  return true;
+}
+
+// The time form's flat and lofted meeting times for speed u (still target), or
+// out_of_reach. The split between the two roots needs only a time where F < 0: the vacuum
+// least-speed time usually is one (one evaluation); only when it is not is the exact
+// minimum of F located (least_time) to tell a target out of reach from one just inside.
+// Each root is then polished by safeguarded Newton from the vacuum times.
 template <Real T>
 [[nodiscard]] result<time_roots<T>> time_form_roots(const time_form<T>& f, const T& u, const T& scale,
                                                      std::uintmax_t max_iter) {
   using std::sqrt;
-  const result<T> tm = least_time(f, scale, max_iter);
-  if (!tm) return unexpected<error>(tm.error());
   const T u2 = u * u;
-  const T need = f.need2(*tm);
-  if (!(need < u2)) {
-    if (need - u2 <= T(32) * epsilon<T>() * u2) return time_roots<T>{*tm, *tm, *tm, true};
-    error e(errc::out_of_reach, "target out of reach at this speed; least speed needed",
-            static_cast<long double>(T(sqrt(need))));
-    return unexpected<error>(e);
+  T vf = T(0);
+  T vl = T(0);
+  const bool vac = vacuum_times(f.n0, f.g, u, vf, vl);
+  if (f.k == T(0) && f.drift + f.wind == vec3<T>::Zero() && vac) return time_roots<T>{vf, vl, scale, false};
+  T split = scale;
+  T f_split = T(f.need2(split) - u2);
+  if (!(f_split < T(0))) {
+    const result<T> tm = least_time(f, scale, max_iter);
+    if (!tm) return unexpected<error>(tm.error());
+    split = *tm;
+    f_split = T(f.need2(split) - u2);
+    if (!(f_split < T(0))) {
+      if (f_split <= T(32) * epsilon<T>() * u2) return time_roots<T>{split, split, split, true};
+      error e(errc::out_of_reach, "target out of reach at this speed; least speed needed",
+              static_cast<long double>(T(sqrt(T(f_split + u2)))));
+      return unexpected<error>(e);
+    }
   }
-  const T f_m = T(need - u2);
-  T lo = *tm / 2;
+  T lo = vac && vf < split ? vf : T(split / 2);
   T f_lo = T(f.need2(lo) - u2);
   for (int i = 0; !(f_lo > T(0)); ++i) {
     if (i > 1000 || !(lo > T(0))) return fail(errc::no_convergence, "aim: no lower time bracket");
     lo /= 2;
     f_lo = T(f.need2(lo) - u2);
   }
-  T hi = *tm * 2;
+  T hi = vac && vl > split ? vl : T(split * 2);
   T f_hi = T(f.need2(hi) - u2);
   for (int i = 0; !(f_hi > T(0)); ++i) {
     if (i > 1000 || !is_finite(hi)) return fail(errc::no_convergence, "aim: no upper time bracket");
     hi *= 2;
     f_hi = T(f.need2(hi) - u2);
   }
-  const result<T> t1 = meeting_time(f, u2, lo, *tm, f_lo, f_m, max_iter);
+  // Drag lengthens the flat flight and shortens the lofted one: start from the far ends.
+  const result<T> t1 = meeting_time(f, u2, lo, split, f_lo, lo, max_iter);
   if (!t1) return unexpected<error>(t1.error());
-  const result<T> t2 = meeting_time(f, u2, *tm, hi, f_m, f_hi, max_iter);
+  const result<T> t2 = meeting_time(f, u2, split, hi, f_split, hi, max_iter);
   if (!t2) return unexpected<error>(t2.error());
-  return time_roots<T>{*t1, *t2, *tm, false};
+  return time_roots<T>{*t1, *t2, split, false};
 }
 
 /// One trial shot of the direct (any-model) solvers: where the flight launched at
@@ -262,19 +304,36 @@ struct shooter {
   T distance;     // |level|
   T rise;         // height of target above launch
   T bearing;      // azimuth of the target
+  flight_options<T> probe_options;
 
   [[nodiscard]] static shooter make(const M& m, const medium<T>& a, const aim_frame<T>& f,
                                     const solve_options<T>& o, const vec3<T>& from, const vec3<T>& to) {
     using std::sqrt;
     const vec3<T> d = to - from;
     const vec3<T> lv = d - T(f.up.dot(d)) * f.up;
-    return shooter{m, a, f, o, from, to, lv, T(sqrt(T(lv.squaredNorm()))), T(f.up.dot(d)), f.azimuth_of(lv)};
+    return shooter{m, a, f, o, from, to, lv, T(sqrt(T(lv.squaredNorm()))), T(f.up.dot(d)), f.azimuth_of(lv),
+                   o.flight};
+  }
+
+  // Caps the flight time of trial shots at `speed`: four times the time a vertical shot
+  // takes to come down to (target height - distance - 1 m). A trial that has not reached
+  // the target's distance by then is far below it (an inclined shot is, to within that
+  // margin, never higher than the vertical one at the same time: common practice), so
+  // it counts as not reached, and near-vertical trials stop early instead of creeping
+  // sideways until max_time.
+  void cap_time(const T& speed) {
+    const auto flight = fly(model, air, shot<T>{launch, vec3<T>(speed * frame.up)}, opts.flight);
+    if (!flight) return;
+    const result<state<T>> down = flight->landing(T(height(target, air) - distance - T(1)));
+    if (!down) return;
+    const T cap = T(4) * down->time;
+    if (cap < probe_options.max_time) probe_options.max_time = cap;
   }
 
   [[nodiscard]] probe_result<T> probe(const T& elevation, const T& azimuth, const T& speed) const {
     probe_result<T> p;
     p.velocity = vec3<T>(speed * frame.direction(elevation, azimuth));
-    const auto flight = fly(model, air, shot<T>{launch, p.velocity}, opts.flight);
+    const auto flight = fly(model, air, shot<T>{launch, p.velocity}, probe_options);
     const T scale = distance + T(1);
     p.miss = T(-scale * T(1000)) * (T(4) + elevation);  // never reached: below, decreasing
     if (!flight) return p;
@@ -296,17 +355,72 @@ struct plane_roots {
   T best_elevation{}, best_miss{};
 };
 
+// Vacuum elevations towards a point d away and H up at speed u:
+// tan(theta) = (u^2 -+ sqrt(u^4 - g (g d^2 + 2 H u^2))) / (g d) (any mechanics textbook).
+template <Real T>
+[[nodiscard]] bool vacuum_elevations(const T& d, const T& rise, const T& u, const T& g, T& flat, T& lofted) {
+  using std::atan;
+  using std::sqrt;
+  const T u2 = u * u;
+  const T disc = u2 * u2 - g * (g * d * d + 2 * rise * u2);
+  if (!(disc >= T(0))) return false;
+  const T r = sqrt(disc);
+  flat = atan(T((u2 - r) / (g * d)));
+  lofted = atan(T((u2 + r) / (g * d)));
+  return true;
+}
+
 // For a fixed azimuth, the elevations whose flight passes the target's distance at the
-// target's height. The miss is taken as unimodal in the elevation on
-// [line of sight, pi/2): Boost.Math's Brent finds its peak (coarsely first, fully when
-// the peak is near zero), TOMS 748 the roots on each side.
+// target's height; the miss is taken as unimodal in the elevation on
+// [line of sight, pi/2). First try: the vacuum solutions and the elevation midway between
+// them (which bisects the line of sight and the vertical) give brackets in 3 flights when
+// the midway elevation clears the target, as it does for moderate drag; the roots are
+// then found by TOMS 748. Otherwise Boost.Math's Brent finds the peak of the miss
+// (coarsely first, fully when the peak is near zero) and TOMS 748 the roots on each side.
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<plane_roots<T>> plane_solve(const shooter<M>& sh, const T& azimuth, const T& speed,
                                                  const T& tol) {
   using std::atan2;
+  using std::sqrt;
   const T top = half_pi<T>() * (T(1) - T(1) / T(1 << 20));
   auto miss = [&](const T& e) { return sh.probe(e, azimuth, speed).miss; };
-  T lo = atan2(sh.rise, sh.distance);
+  const T sight = atan2(sh.rise, sh.distance);
+  const T g = sqrt(T(sh.air.gravity.squaredNorm()));
+  plane_roots<T> out;
+  T vf = T(0);
+  T vl = T(0);
+  if (vacuum_elevations(sh.distance, sh.rise, speed, g, vf, vl)) {
+    const T mid = (half_pi<T>() + sight) / 2;
+    const T f_mid = miss(mid);
+    if (f_mid > tol) {
+      T a = vf;
+      T f_a = vf > sight ? miss(vf) : T(1);
+      if (!(f_a < T(0))) {
+        a = sight;
+        f_a = miss(sight);
+      }
+      T b = vl;
+      T f_b = vl < top ? miss(vl) : T(1);
+      if (!(f_b < T(0))) {
+        b = top;
+        f_b = miss(top);
+      }
+      if (f_a < T(0) && f_b < T(0)) {
+        const result<T> r1 = bracketed_root(miss, a, mid, f_a, f_mid, sh.opts.max_iterations,
+                                            "aim: flat root did not converge");
+        if (!r1) return unexpected<error>(r1.error());
+        const result<T> r2 = bracketed_root(miss, mid, b, f_mid, f_b, sh.opts.max_iterations,
+                                            "aim: lofted root did not converge");
+        if (!r2) return unexpected<error>(r2.error());
+        out.flat = *r1;
+        out.lofted = *r2;
+        out.best_elevation = mid;
+        out.best_miss = f_mid;
+        return out;
+      }
+    }
+  }
+  T lo = sight;
   T f_lo = miss(lo);
   if (!(f_lo < T(0))) {  // an updraft can lift the line of sight; open the search downwards
     lo = -top;
@@ -321,7 +435,6 @@ template <DragModel M, Real T = scalar_of<M>>
                      "aim: peak search did not converge");
     if (!peak) return unexpected<error>(peak.error());
   }
-  plane_roots<T> out;
   out.best_elevation = peak->first;
   out.best_miss = -peak->second;
   if (out.best_miss < -tol) return out;
@@ -407,7 +520,8 @@ template <DragModel M, Real T = scalar_of<M>>
                                                   const aim_request<T>& req, const solve_options<T>& o) {
   using std::abs;
   using std::sqrt;
-  const shooter<M> sh = shooter<M>::make(model, air, frame, o, req.launch_point, req.target);
+  shooter<M> sh = shooter<M>::make(model, air, frame, o, req.launch_point, req.target);
+  if constexpr (!model_traits<M>::closed_form) sh.cap_time(req.speed);
   const T scale = sqrt(T((req.target - req.launch_point).squaredNorm()));
   const T tol = miss_tolerance(o, scale);
   aim_solutions<T> out;

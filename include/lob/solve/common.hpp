@@ -174,6 +174,33 @@ template <Real T, class F>
   return T((r.first + r.second) / 2);
 }
 
+/// Newton's method safeguarded by bisection on [lo, hi], where f changes sign; `fdf`
+/// returns (f, f'). Hand-written because Boost 1.74's newton_raphson_iterate takes no
+/// error policy and throws when it loses its bracket, which lob's core must not do; this
+/// one keeps the bracket, bisects whenever a Newton step leaves it or fails to halve it,
+/// and stops at a step of 2 ulp. Capped at `max_iter`.
+template <Real T, class FdF>
+[[nodiscard]] result<T> safe_newton(FdF&& fdf, T lo, T hi, T f_lo, T guess, std::uintmax_t max_iter,
+                                    const char* what) {
+  using std::abs;
+  const T eps = epsilon<T>();
+  const bool rising = f_lo < T(0);
+  T t = (guess > lo && guess < hi) ? guess : T((lo + hi) / 2);
+  T last_step = hi - lo;
+  for (std::uintmax_t i = 0; i < max_iter; ++i) {
+    const std::pair<T, T> v = fdf(t);
+    if (v.first == T(0)) return t;
+    if ((v.first < T(0)) == rising) lo = t;
+    else hi = t;
+    T next = v.second != T(0) ? T(t - v.first / v.second) : T((lo + hi) / 2);
+    if (!(next > lo && next < hi) || abs(T(next - t)) > last_step / 2) next = (lo + hi) / 2;
+    last_step = abs(T(next - t));
+    t = next;
+    if (last_step <= 2 * eps * abs(t) || !(hi - lo > 2 * eps * abs(t))) return t;
+  }
+  return fail(errc::no_convergence, what);
+}
+
 /// Boost.Math's Brent minimiser of f on [lo, hi] with half of T's bits (the best it can
 /// do); returns (argmin, min) or `no_convergence` when the budget runs out.
 template <Real T, class F>
