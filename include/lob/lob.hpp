@@ -33,3 +33,6 @@
 #include "lob/physics/correlated_drag.hpp"
 #include "lob/physics/drag_model_choice.hpp"
 #include "lob/physics/calibrate.hpp"
+#include "lob/solve/clearance.hpp"
+#include "lob/solve/intercept.hpp"
+#include "lob/solve/reach_zone.hpp"
