@@ -10,6 +10,7 @@
 /// offline fitting tool, not part of the flight core; `fly()` and every trajectory query
 /// stay allocation-free. No exceptions are thrown (Eigen reports through status codes).
 
+#include <algorithm>
 #include <cstddef>
 #include <cstdint>
 #include <span>
@@ -63,7 +64,8 @@ struct fit_options {
 /// What `calibrate` found. Standard errors come from the covariance s^2 (J^T J)^-1 at the
 /// solution, s^2 = (sum of squared residuals) / (m - n) for m residual components and n
 /// unknowns: right to first order for small, independent, equal-variance noise. With a
-/// robust loss they are those of the reweighted problem (an approximation).
+/// robust loss, J is that of the transformed residuals (outliers weigh less) and s is the
+/// robust scale 1.4826 * median |r| (times sqrt(m / (m - n))): an approximation.
 template <Real T>
 struct fit_result {
   T parameter{};        ///< the drag parameter (rate, coefficient, ...) as `make` takes it
@@ -286,8 +288,24 @@ template <Real T, class MakeModel>
   const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> eye =
       Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic>::Identity(unknowns, unknowns);
   const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> covariance_unscaled = ldlt.solve(eye);
-  const T rss = fvec.squaredNorm();
-  const T s2 = rss / T(values - unknowns);
+  std::vector<vec3<T>> raw;
+  if (!problem.raw(x, raw)) return unexpected<error>(problem.failure());
+  T s2 = fvec.squaredNorm() / T(values - unknowns);
+  if (options.loss != fit_loss::squared) {
+    // Robust scale: 1.4826 times the median absolute residual component (consistent for
+    // Gaussian noise), so that outliers do not inflate the noise estimate.
+    std::vector<T> magnitudes;
+    magnitudes.reserve(static_cast<std::size_t>(values));
+    for (const vec3<T>& r : raw)
+      for (int c = 0; c < 3; ++c) {
+        using std::abs;
+        magnitudes.push_back(abs(T(r(c))));
+      }
+    const std::size_t mid = magnitudes.size() / 2;
+    std::nth_element(magnitudes.begin(), magnitudes.begin() + static_cast<std::ptrdiff_t>(mid), magnitudes.end());
+    const T mad = T(14826) / T(10000) * magnitudes[mid];
+    s2 = mad * mad * T(values) / T(values - unknowns);
+  }
   T smallest_pivot = T(0), largest_pivot = T(0);
   for (Eigen::Index i = 0; i < unknowns; ++i) {
     using std::abs;
@@ -315,8 +333,6 @@ template <Real T, class MakeModel>
       ++k;
     }
   }
-  std::vector<vec3<T>> raw;
-  if (!problem.raw(x, raw)) return unexpected<error>(problem.failure());
   T sum = T(0);
   for (const vec3<T>& r : raw) sum += T(r.squaredNorm());
   out.residuals = std::move(raw);
