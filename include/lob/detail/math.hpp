@@ -65,15 +65,71 @@ template <Real T>
   return x == T(0) ? T(1) : T(detail::log1p(x) / x);
 }
 
+/// How many terms of a series a precision needs: for |x| <= limits[i], terms[i] (rows for
+/// 24, 53 and 64 significand bits; beyond the last limit, or for wider types, 0 = "sum to
+/// convergence"). The counts come from the coefficients' sizes, with the tail below
+/// eps/16 of the value.
+template <Real T, int L>
+[[nodiscard]] int series_terms(const T& magnitude, const double (&limits)[L], const int (&t24)[L],
+                               const int (&t53)[L], const int (&t64)[L]) {
+  constexpr int digits = std::numeric_limits<T>::digits;
+  if constexpr (digits > 64) {
+    return 0;
+  } else {
+    const int* terms = digits <= 24 ? t24 : digits <= 53 ? t53 : t64;
+    for (int i = 0; i < L; ++i)
+      if (magnitude <= T(limits[i])) return terms[i];
+    return 0;
+  }
+}
+
+/// 1/(2j + 3), j = 0 .. 19: the coefficients of log1pmx_series.
+template <class T>
+inline constexpr T log1pmx_coefficients[20] = {
+    T(1) / T(3),
+    T(1) / T(5),
+    T(1) / T(7),
+    T(1) / T(9),
+    T(1) / T(11),
+    T(1) / T(13),
+    T(1) / T(15),
+    T(1) / T(17),
+    T(1) / T(19),
+    T(1) / T(21),
+    T(1) / T(23),
+    T(1) / T(25),
+    T(1) / T(27),
+    T(1) / T(29),
+    T(1) / T(31),
+    T(1) / T(33),
+    T(1) / T(35),
+    T(1) / T(37),
+    T(1) / T(39),
+    T(1) / T(41)};
+
 /// S(w) = sum_j w^j / (2j + 3) for 0 <= w <= 1/9: the series behind log1p(x) = 2y (1 + y^2 S)
 /// and -log1pmx(x)/x^2 = (1 - y)/2 (1 - y (1 - y) S) with y = x/(2 + x) and w = y^2
-/// (from log(1 + x) = 2 atanh(y)). Terms fall at least like 9^-j.
+/// (from log(1 + x) = 2 atanh(y)). Terms fall at least like 9^-j. Built-in types sum a
+/// fixed number of terms by Horner's rule (no loop-carried division); wider types sum to
+/// convergence.
 template <Real T>
 [[nodiscard]] T log1pmx_series(const T& w) {
+  static constexpr double limits[7] = {1e-8, 1e-6, 1e-4, 1e-3, 1e-2, 3e-2, 1.0 / 9};
+  static constexpr int t24[7] = {1, 2, 2, 3, 4, 5, 8};
+  static constexpr int t53[7] = {3, 3, 5, 6, 9, 11, 17};
+  static constexpr int t64[7] = {3, 4, 5, 7, 10, 13, 20};
+  if constexpr (std::is_floating_point_v<T>) {
+    const int n = series_terms(w, limits, t24, t53, t64);
+    if (n > 0) {
+      T sum = log1pmx_coefficients<T>[n - 1];
+      for (int i = n - 2; i >= 0; --i) sum = sum * w + log1pmx_coefficients<T>[i];
+      return sum;
+    }
+  }
   const T eps = epsilon<T>();
   T power = T(1);
   T sum = T(1) / T(3);
-  for (int j = 1; j < 200; ++j) {  // 9^-j: 200 terms exceed any precision
+  for (int j = 1; j < 400; ++j) {  // 9^-j: 400 terms exceed any precision
     power *= w;
     const T term = power / T(2 * j + 3);
     sum += term;
@@ -202,18 +258,50 @@ template <Real T>
   return z == T(0) ? T(1) : T(-detail::expm1(T(-z)) / z);
 }
 
+/// (-1)^n / (n + 2)!, n = 0 .. 15: the Taylor coefficients of phi2 (all exact integers
+/// in double).
+template <class T>
+inline constexpr T phi2_coefficients[16] = {
+    T(1) / T(2),
+    T(-1) / T(6),
+    T(1) / T(24),
+    T(-1) / T(120),
+    T(1) / T(720),
+    T(-1) / T(5040),
+    T(1) / T(40320),
+    T(-1) / T(362880),
+    T(1) / T(3628800),
+    T(-1) / T(39916800),
+    T(1) / T(479001600),
+    T(-1) / T(6227020800),
+    T(1) / T(87178291200),
+    T(-1) / T(1307674368000),
+    T(1) / T(20922789888000),
+    T(-1) / T(355687428096000)};
+
 /// phi2(z) = (z - 1 + e^-z) / z^2, continuous at 0 (value 1/2); z >= 0.
 /// Gravity's share of linear-drag flight: x(t) contains g * t^2 * phi2(k t).
-/// The closed form cancels for small z (z + expm1(-z) ~ z^2/2), so below z = 1 it is
-/// summed as its Taylor series sum_n (-z)^n / (n+2)!, whose terms fall at least like
-/// 1/(n+2)!; above, the closed form loses at most a factor e (about 2 bits).
+/// The closed form cancels for small z (z + expm1(-z) ~ z^2/2), so below z = 1/2 it is
+/// summed as its Taylor series sum_n (-z)^n / (n+2)! (built-in types: a fixed number of
+/// terms by Horner's rule; wider types: to convergence); above, the closed form loses at
+/// most 2/z ulps, 4 at z = 1/2.
 template <Real T>
 [[nodiscard]] T phi2(const T& z) {
-  if (z < T(1)) {
+  if (z < T(1) / T(2)) {
+    static constexpr double limits[9] = {1e-8, 1e-6, 1e-4, 1e-3, 1e-2, 3e-2, 0.1, 0.25, 0.5};
+    static constexpr int t24[9] = {1, 2, 2, 3, 4, 4, 5, 7, 8};
+    static constexpr int t53[9] = {2, 3, 4, 5, 7, 8, 10, 12, 14};
+    static constexpr int t64[9] = {3, 4, 5, 6, 8, 9, 11, 14, 16};
+    if constexpr (std::is_floating_point_v<T>) {
+      const int n = series_terms(z, limits, t24, t53, t64);
+      T sum = phi2_coefficients<T>[n - 1];
+      for (int i = n - 2; i >= 0; --i) sum = sum * z + phi2_coefficients<T>[i];
+      return sum;
+    }
     const T eps = epsilon<T>();
     T term = T(1) / T(2);
     T sum = term;
-    for (int n = 1; n < 200; ++n) {  // 200 terms reach far beyond any precision at z < 1
+    for (int n = 1; n < 200; ++n) {  // 200 terms reach far beyond any precision at z < 1/2
       term *= -z / T(n + 2);
       sum += term;
       using std::abs;
@@ -222,6 +310,14 @@ template <Real T>
     return sum;
   }
   return T((z + detail::expm1(T(-z))) / (z * z));
+}
+
+/// phi2 from a decay_pair already at hand (saves the exponential above z = 1/2):
+/// (1 - phi1)/z there, the series below.
+template <Real T>
+[[nodiscard]] T phi2(const T& z, const decay_pair<T>& d) {
+  if (z < T(1) / T(2)) return phi2(z);
+  return T((T(1) - d.phi1) / z);
 }
 
 /// A type with more precision than T for residuals that cancel: long double for double
@@ -242,32 +338,43 @@ struct vertical_motion {
   /// Height above the launch at time t: v t phi1(kt) - G t^2 phi2(kt).
   [[nodiscard]] T rise(const T& t) const {
     const T z = k * t;
-    return T(v * t * phi1(z) - G * t * t * phi2(z));
-  }
-  /// Vertical velocity at time t: v e^-kt - G t phi1(kt).
-  [[nodiscard]] T climb(const T& t) const {
-    const decay_pair<T> d = decay(T(k * t));
-    return T(v * d.factor - G * t * d.phi1);
+    const decay_pair<T> d = decay(z);
+    return T(v * t * d.phi1 - G * t * t * phi2(z, d));
   }
 
   /// Safeguarded Newton (bisection whenever a step leaves the bracket) for rise(t) = dh
-  /// on [lo, hi], where (rise - dh) * direction goes from < 0 to > 0. At most 200 steps;
-  /// false when they run out. `t` gets the root (or the last iterate).
+  /// on [lo, hi], where (rise - dh) * direction goes from < 0 to > 0. One exponential per
+  /// step gives height, vertical velocity and acceleration; the iteration stops when the
+  /// step is below 2 ulps, or when a step s below sqrt(eps) t has the Newton error
+  /// estimate |f''| s^2 / (2 |f'|) below eps t / 4 (quadratic convergence: the next step
+  /// would change nothing). At most 200 steps; false when they run out.
   [[nodiscard]] bool newton(const T& dh, T lo, T hi, const T& guess, int direction, T& t) const {
     using std::abs;
     const T eps = epsilon<T>();
     t = guess > lo && guess < hi ? guess : T((lo + hi) / 2);
     for (int i = 0; i < 200; ++i) {
-      const T f = T(rise(t) - dh) * T(direction);
+      const T z = k * t;
+      const decay_pair<T> d = decay(z);
+      const T f = T(T(v * t * d.phi1 - G * t * t * phi2(z, d)) - dh) * T(direction);
       if (f == T(0)) return true;
       if (f < T(0)) lo = t;
       else hi = t;
-      const T slope = climb(t) * T(direction);
-      T next = slope > T(0) ? T(t - f / slope) : T((lo + hi) / 2);
-      if (!(next > lo && next < hi)) next = (lo + hi) / 2;
+      const T slope = T(v * d.factor - G * t * d.phi1) * T(direction);
+      bool newton_step = slope > T(0);
+      T next = newton_step ? T(t - f / slope) : T((lo + hi) / 2);
+      if (!(next > lo && next < hi)) {
+        next = (lo + hi) / 2;
+        newton_step = false;
+      }
       const T step = abs(T(next - t));
       t = next;
       if (step <= 2 * eps * abs(t) || !(hi - lo > 2 * eps * abs(t))) return true;
+      // The estimate holds only once the iterate is close (f'' may change by orders of
+      // magnitude over a long step where e^-kt decays): within sqrt(eps) relative.
+      if (newton_step && step * step <= eps * t * t) {
+        const T curvature = abs(T(d.factor * (k * v + G)));  // |d^2 rise/dt^2|
+        if (curvature * step * step <= eps * abs(t) * slope / 2) return true;
+      }
     }
     return false;
   }

@@ -80,7 +80,7 @@ class linear_flight {
     const detail::decay_pair<T> d = detail::decay(T(k_ * t_turn_));
     state<T> s;
     s.time = t_turn_;
-    s.position = launch_.position + drift(t_turn_) + up_ * top_;
+    s.position = launch_.position + drift(t_turn_, d) + up_ * top_;
     s.velocity = v0_h_ * d.factor + wind_h_ * T(k_ * t_turn_ * d.phi1);
     return checked(s);
   }
@@ -178,7 +178,7 @@ class linear_flight {
       : k_(rate), air_(air), launch_(launch) {
     using std::sqrt;
     g_ = sqrt(T(air.gravity.squaredNorm()));
-    up_ = g_ > T(0) ? vec3<T>(-air.gravity / g_) : vec3<T>(vec3<T>::Zero());
+    up_ = g_ > T(0) ? vec3<T>(air.gravity * T(T(-1) / g_)) : vec3<T>(vec3<T>::Zero());
     w_ = up_.dot(air.wind);
     v_ = up_.dot(launch.velocity);
     h0_ = up_.dot(launch.position);
@@ -230,18 +230,19 @@ class linear_flight {
   // wind is strong and k t small (wind t (1 - phi1) = k wind t^2 phi2 is the same term
   // without the cancellation); k -> 0 needs no special case (phi1 -> 1, phi2 -> 1/2).
 
-  // Horizontal displacement from the launch at time t; phi2 only when there is wind.
-  [[nodiscard]] vec3<T> drift(const T& t) const {
+  // Horizontal displacement from the launch at time t (d = decay(k t)); phi2 only when
+  // there is wind across "up".
+  [[nodiscard]] vec3<T> drift(const T& t, const detail::decay_pair<T>& d) const {
+    if (!has_side_wind_) return vec3<T>(v0_h_ * T(t * d.phi1));
     const T z = k_ * t;
-    const T p1 = detail::decay(z).phi1;
-    if (!has_side_wind_) return vec3<T>(v0_h_ * T(t * p1));
-    return vec3<T>(v0_h_ * T(t * p1) + wind_h_ * T(k_ * t * t * detail::phi2(z)));
+    return vec3<T>(v0_h_ * T(t * d.phi1) + wind_h_ * T(k_ * t * t * detail::phi2(z, d)));
   }
+  [[nodiscard]] vec3<T> drift(const T& t) const { return drift(t, detail::decay(T(k_ * t))); }
 
   [[nodiscard]] state<T> state_at(const T& t) const {
     const T z = k_ * t;
     const detail::decay_pair<T> d = detail::decay(z);
-    const T p2 = detail::phi2(z);
+    const T p2 = detail::phi2(z, d);
     state<T> s;
     s.time = t;
     s.position = launch_.position + launch_.velocity * T(t * d.phi1) + pull_ * T(t * t * p2);
@@ -255,7 +256,7 @@ class linear_flight {
     const detail::decay_pair<T> d = detail::decay(T(k_ * t));
     state<T> s;
     s.time = t;
-    s.position = launch_.position + drift(t) + up_ * dh;
+    s.position = launch_.position + drift(t, d) + up_ * dh;
     s.velocity = launch_.velocity * d.factor + pull_ * T(t * d.phi1);
     return s;
   }
