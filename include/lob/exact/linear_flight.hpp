@@ -320,20 +320,75 @@ class linear_flight {
     return T(t_turn_ + k_ * D / G_ + tail);
   }
 
-  // A downward shot (v < 0) crossing dh < 0. The vertical speed moves monotonically from
-  // |v| towards the fall speed G/k, so the time lies between |dh| / max(|v|, G/k) and
-  // |dh| / min(|v|, G/k). Vacuum: the root 2 dh/(v - sqrt(v^2 - 2 g dh)), which does not
-  // cancel. With drag the apex form would subtract the virtual apex time, so its value
-  // only seeds safeguarded Newton on the explicit height.
+  // A downward shot (v < 0) crossing dh < 0. Vacuum: the root 2 dh/(v - sqrt(v^2 - 2 g dh)),
+  // which does not cancel. With drag, the apex form would subtract the time of the virtual
+  // apex before launch, so another form is used. In tau = k t the crossing solves
+  // (1 + x)(1 - e^-tau) - tau = q (x = k v/G, q = k^2 dh/G). For -1 < x < 0 put
+  // tau = (1 + x) a - q: then -log1pmx(-a) + |x| a = |q| with a in (0, 1), i.e.
+  //   h(a) = a^2 m(-a) + |x| a - |q| = 0,   m = -log1pmx(x)/x^2 (detail::log1pmx_ratio),
+  // whose terms are all positive (so t = ((1 + x) a + |q|)/k does not cancel either) and
+  // which is increasing and convex: Newton from the vacuum value a0 = 2|q|/(|x| +
+  // sqrt(x^2 + 2|q|)), an upper bound (m >= 1/2), descends monotonically onto the root.
+  // (This is the W0 root u = a (1 + x) - x of the Lambert form, solved for u + x directly.)
+  // For x <= -1 (launched down at least as fast as the fall speed) put rho = -(1 + x) >= 0:
+  // H(tau) = rho (1 - e^-tau) + tau - |q| = 0, increasing and concave, so Newton from the
+  // lower bound max(|q|/(1 + rho), |q| - rho) climbs monotonically onto the root. Below
+  // tau = 1 H is summed as written (positive terms, -expm1); above, as
+  // C + tau - rho e^-tau with C = rho - |q| = (k (|v| - k |dh|) - G)/G formed once in a
+  // wider type: when the drop is about |v|/k (the shot sheds its speed right at the
+  // plane) rho and |q| are large and nearly equal, and C carries the answer. If either
+  // iteration gives out, safeguarded Newton on the explicit height, in the wider type,
+  // between |dh| / max(|v|, G/k) and |dh| / min(|v|, G/k), takes over.
   [[nodiscard]] result<T> downward_crossing(const T& dh) const {
     using std::abs;
+    using std::sqrt;
     if (k_ == T(0)) return vacuum_crossing(dh, side::falling);
+    if (x_ > T(-1)) {
+      const T ax = -x_;
+      const T aq = -k_ * k_ * dh / G_;
+      const T eps = detail::epsilon<T>();
+      T a = T(2) * aq / (ax + sqrt(T(ax * ax + 2 * aq)));
+      if (!(a < T(1))) a = T(1) - eps;
+      for (int i = 0; i < 100; ++i) {
+        const T h = T(a * a * detail::log1pmx_ratio(T(-a)) + ax * a - aq);
+        const T slope = a / (T(1) - a) + ax;
+        const T step = h / slope;
+        const T next = a - step;
+        if (!(next > T(0) && next < T(1))) break;
+        a = next;
+        const T as = abs(step);
+        if (as <= 2 * eps * a) return T((T(T(1) + x_) * a + aq) / k_);
+        // Newton error estimate h'' s^2 / (2 h'), h'' = 1/(1 - a)^2, once within sqrt(eps).
+        if (as * as <= eps * a * a && as * as <= eps * a * slope * T(T(1) - a) * T(T(1) - a) / 2)
+          return T((T(T(1) + x_) * a + aq) / k_);
+      }
+    }
+    if (!(x_ > T(-1))) {
+      using std::exp;
+      using W = detail::wider_t<T>;
+      const W kw(k_), gw(G_), vw(-v_), dw(-dh);
+      const T rho = T((kw * vw - gw) / gw);
+      const T aq = T(kw * kw * dw / gw);
+      const T c = T((kw * (vw - kw * dw) - gw) / gw);
+      const T eps = detail::epsilon<T>();
+      T tau = aq / (T(1) + rho);
+      if (-c > tau) tau = -c;
+      for (int i = 0; i < 100; ++i) {
+        const T e = exp(-tau);
+        const T h = tau < T(1) ? T(rho * T(-detail::expm1(T(-tau))) + tau - aq) : T(c + tau - rho * e);
+        const T slope = rho * e + T(1);
+        const T step = -h / slope;
+        if (!(step >= T(0)) || !is_finite(step)) break;  // from below, steps never go back
+        tau += step;
+        if (step <= 2 * eps * tau) return T(tau / k_);
+        if (step * step <= eps * tau * tau && rho * e * step * step <= eps * tau * slope / 2) return T(tau / k_);
+      }
+    }
     const T speed = abs(climb0());
     const T fall_speed = G_ / k_;
     const T lo = -dh / (speed > fall_speed ? speed : fall_speed);
     const T hi = -dh / (speed > fall_speed ? fall_speed : speed);
-    const T guess = x_ > T(-1) ? apex_form(dh, side::falling) : T((lo + hi) / 2);
-    return polish(dh, lo, hi, guess, -1);
+    return polish(dh, lo, hi, T((lo + hi) / 2), -1);
   }
 
   // Vacuum: roots of (g/2) t^2 - v t + dh = 0 in the form that does not cancel (the
