@@ -1,13 +1,18 @@
 // Calibration: fitting drag parameters (and launch speed and elevation) to measured flights.
 #include <doctest/doctest.h>
 
+#include <boost/multiprecision/cpp_bin_float.hpp>
+#include <boost/multiprecision/eigen.hpp>
 #include <cmath>
 #include <cstring>
+#include <limits>
 #include <random>
 #include <string>
 #include <vector>
 
 #include "lob/lob.hpp"
+
+using mp50 = boost::multiprecision::cpp_bin_float_50;
 
 namespace {
 struct scenario {
@@ -250,4 +255,28 @@ TEST_CASE("too few samples, bad inputs and a non-converged fit are errors") {
   const lob::result<lob::fit_result<double>> unknowable = lob::calibrate(linear_family, 0.1, blind, air);
   REQUIRE_FALSE(unknowable);
   CHECK(unknowable.error() == lob::errc::no_convergence);
+}
+
+TEST_CASE_TEMPLATE("calibration works in every scalar type", T, float, long double, mp50) {
+  // Exact samples of a linear-drag flight; the fit stops at Eigen's default tolerances
+  // (sqrt(eps) relative in the unknowns, eps of the solver's scalar: long double for the
+  // 50-digit type), so that is what is asked of it.
+  const lob::medium<T> air{};
+  const lob::shot<T> launch{lob::vec3<T>::Zero(), lob::launch_velocity(T(20), lob::deg(T(40)))};
+  const T k_true = T(3) / T(25);
+  const auto flight = lob::fly(lob::linear_drag<T>{k_true}, air, launch);
+  REQUIRE(flight.has_value());
+  std::vector<lob::sample<T>> data;
+  for (int i = 1; i <= 12; ++i) {
+    const T t = T(i) / T(5);
+    data.push_back({t, flight->at(t)->position});
+  }
+  const lob::measured_flight<T> measured{launch, data};
+  const auto family = [](const T& k) { return lob::linear_drag<T>{k}; };
+  const lob::result<lob::fit_result<T>> fit = lob::calibrate(family, T(1) / T(5), measured, air);
+  REQUIRE(fit.has_value());
+  using std::abs;
+  using std::sqrt;
+  const T eps = T(std::numeric_limits<lob::detail::lm_scalar<T>>::epsilon());
+  CHECK(abs(T(fit->parameter / k_true - 1)) <= T(100) * sqrt(eps));
 }

@@ -9,10 +9,16 @@
 /// holds the residuals in a `std::vector`. That is accepted here because calibration is an
 /// offline fitting tool, not part of the flight core; `fly()` and every trajectory query
 /// stay allocation-free. No exceptions are thrown (Eigen reports through status codes).
+///
+/// Scalars: models and flights are evaluated in T; for multiprecision T the solver's own
+/// algebra runs in long double (see detail::lm_scalar), which bounds the fit's precision
+/// at about 1e-19 relative, far below any measurement noise.
 
 #include <algorithm>
 #include <cstddef>
+#include <cmath>
 #include <cstdint>
+#include <limits>
 #include <span>
 #include <type_traits>
 #include <utility>
@@ -102,10 +108,19 @@ template <Real T>
   return r;
 }
 
+// The scalar of the least-squares algebra: T itself for built-in types; long double for
+// multiprecision types, whose Eigen adaptor (Boost 1.74) lacks the NumTraits members
+// (digits, min_exponent) that Eigen's Levenberg–Marquardt needs. Models and flights are
+// still evaluated in T; only the solver's steps and the covariance are in long double,
+// far finer than any measurement noise.
+template <class T>
+using lm_scalar = std::conditional_t<std::is_floating_point_v<T>, T, long double>;
+
 template <Real T, class MakeModel>
-class calibration_problem : public Eigen::DenseFunctor<T> {
+class calibration_problem : public Eigen::DenseFunctor<lm_scalar<T>> {
  public:
-  using base = Eigen::DenseFunctor<T>;
+  using S = lm_scalar<T>;
+  using base = Eigen::DenseFunctor<S>;
   using typename base::InputType;
   using typename base::JacobianType;
   using typename base::ValueType;
@@ -137,8 +152,8 @@ class calibration_problem : public Eigen::DenseFunctor<T> {
         T elevation = T(0);
         using std::atan2;
         elevation = atan2(T(u.dot(v0)), level_speed);
-        if (options_.fit_speed) speed = x(k++);
-        if (options_.fit_elevation) elevation = x(k++);
+        if (options_.fit_speed) speed = T(x(k++));
+        if (options_.fit_elevation) elevation = T(x(k++));
         const vec3<T> dir = level_speed > T(0) ? vec3<T>(level / level_speed) : vec3<T>(vec3<T>::Zero());
         launch.velocity = vec3<T>(speed * (T(cos(elevation)) * dir + T(sin(elevation)) * u));
       }
@@ -165,7 +180,7 @@ class calibration_problem : public Eigen::DenseFunctor<T> {
     for (std::size_t i = 0; i < scratch_.size(); ++i)
       for (int c = 0; c < 3; ++c)
         fvec(static_cast<Eigen::Index>(3 * i) + c) =
-            robust_residual(T(scratch_[i](c)), options_.loss, options_.loss_scale);
+            static_cast<S>(robust_residual(T(scratch_[i](c)), options_.loss, options_.loss_scale));
     return 0;
   }
 
@@ -173,17 +188,17 @@ class calibration_problem : public Eigen::DenseFunctor<T> {
   int df(const InputType& x, JacobianType& jac) const {
     using std::abs;
     using std::cbrt;
-    const T h0 = cbrt(epsilon<T>());
+    const S h0 = cbrt(std::numeric_limits<S>::epsilon());
     InputType xp = x;
     ValueType fp(this->values()), fm(this->values());
     for (Eigen::Index j = 0; j < x.size(); ++j) {
-      const T h = h0 * (abs(T(x(j))) > T(1) ? T(abs(T(x(j)))) : T(1));
+      const S h = h0 * (abs(x(j)) > S(1) ? S(abs(x(j))) : S(1));
       xp(j) = x(j) + h;
       if ((*this)(xp, fp) != 0) return -1;
       xp(j) = x(j) - h;
       if ((*this)(xp, fm) != 0) return -1;
       xp(j) = x(j);
-      jac.col(j) = (fp - fm) / T(2 * h);
+      jac.col(j) = (fp - fm) / S(2 * h);
     }
     return 0;
   }
@@ -256,16 +271,18 @@ template <Real T, class MakeModel>
 
   using problem_type = detail::calibration_problem<T, MakeModel>;
   problem_type problem(make, flights, air, options, unknowns, values);
-  Eigen::Matrix<T, Eigen::Dynamic, 1> x(unknowns);
-  x(0) = log(initial);
+  using S = detail::lm_scalar<T>;
+  using matrix = Eigen::Matrix<S, Eigen::Dynamic, Eigen::Dynamic>;
+  Eigen::Matrix<S, Eigen::Dynamic, 1> x(unknowns);
+  x(0) = static_cast<S>(T(log(initial)));
   {
     int k = 1;
     const vec3<T> u = up(air);
     for (const measured_flight<T>& f : flights) {
       using std::atan2;
       const T level = sqrt(T(horizontal(f.launch.velocity, air).squaredNorm()));
-      if (options.fit_speed) x(k++) = sqrt(T(f.launch.velocity.squaredNorm()));
-      if (options.fit_elevation) x(k++) = atan2(T(u.dot(f.launch.velocity)), level);
+      if (options.fit_speed) x(k++) = static_cast<S>(T(sqrt(T(f.launch.velocity.squaredNorm()))));
+      if (options.fit_elevation) x(k++) = static_cast<S>(T(atan2(T(u.dot(f.launch.velocity)), level)));
     }
   }
   Eigen::LevenbergMarquardt<problem_type> lm(problem);
@@ -283,14 +300,13 @@ template <Real T, class MakeModel>
   typename problem_type::JacobianType jac(values, unknowns);
   typename problem_type::ValueType fvec(values);
   if (problem(x, fvec) != 0 || problem.df(x, jac) != 0) return unexpected<error>(problem.failure());
-  const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> normal = jac.transpose() * jac;
-  const Eigen::LDLT<Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic>> ldlt(normal);
-  const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> eye =
-      Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic>::Identity(unknowns, unknowns);
-  const Eigen::Matrix<T, Eigen::Dynamic, Eigen::Dynamic> covariance_unscaled = ldlt.solve(eye);
+  const matrix normal = jac.transpose() * jac;
+  const Eigen::LDLT<matrix> ldlt(normal);
+  const matrix eye = matrix::Identity(unknowns, unknowns);
+  const matrix covariance_unscaled = ldlt.solve(eye);
   std::vector<vec3<T>> raw;
   if (!problem.raw(x, raw)) return unexpected<error>(problem.failure());
-  T s2 = fvec.squaredNorm() / T(values - unknowns);
+  S s2 = fvec.squaredNorm() / S(values - unknowns);
   if (options.loss != fit_loss::squared) {
     // Robust scale: 1.4826 times the median absolute residual component (consistent for
     // Gaussian noise), so that outliers do not inflate the noise estimate.
@@ -304,17 +320,18 @@ template <Real T, class MakeModel>
     const std::size_t mid = magnitudes.size() / 2;
     std::nth_element(magnitudes.begin(), magnitudes.begin() + static_cast<std::ptrdiff_t>(mid), magnitudes.end());
     const T mad = T(14826) / T(10000) * magnitudes[mid];
-    s2 = mad * mad * T(values) / T(values - unknowns);
+    s2 = static_cast<S>(T(mad * mad * T(values) / T(values - unknowns)));
   }
-  T smallest_pivot = T(0), largest_pivot = T(0);
+  S smallest_pivot = S(0), largest_pivot = S(0);
   for (Eigen::Index i = 0; i < unknowns; ++i) {
     using std::abs;
-    const T d = abs(T(ldlt.vectorD()(i)));
+    const S d = abs(S(ldlt.vectorD()(i)));
     if (i == 0 || d < smallest_pivot) smallest_pivot = d;
     if (d > largest_pivot) largest_pivot = d;
   }
-  if (ldlt.info() != Eigen::Success || !(smallest_pivot > T(100) * detail::epsilon<T>() * largest_pivot) ||
-      !is_finite(T(covariance_unscaled(0, 0))))
+  if (ldlt.info() != Eigen::Success ||
+      !(smallest_pivot > S(100) * std::numeric_limits<S>::epsilon() * largest_pivot) ||
+      !std::isfinite(covariance_unscaled(0, 0)))
     return fail(errc::no_convergence, "the unknowns are not identifiable from these samples (singular J^T J)");
 
   fit_result<T> out;
@@ -323,12 +340,12 @@ template <Real T, class MakeModel>
   int k = 1;
   for (std::size_t f = 0; f < flights.size(); ++f) {
     if (options.fit_speed) {
-      out.speeds.push_back(x(k));
+      out.speeds.push_back(T(x(k)));
       out.speed_errors.push_back(sqrt(T(s2 * covariance_unscaled(k, k))));
       ++k;
     }
     if (options.fit_elevation) {
-      out.elevations.push_back(x(k));
+      out.elevations.push_back(T(x(k)));
       out.elevation_errors.push_back(sqrt(T(s2 * covariance_unscaled(k, k))));
       ++k;
     }
