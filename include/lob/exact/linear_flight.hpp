@@ -178,7 +178,7 @@ class linear_flight {
       : k_(rate), air_(air), launch_(launch) {
     using std::sqrt;
     g_ = sqrt(T(air.gravity.squaredNorm()));
-    up_ = g_ > T(0) ? vec3<T>(air.gravity * T(T(-1) / g_)) : vec3<T>(vec3<T>::Zero());
+    up_ = g_ > T(0) ? vec3<T>(-air.gravity / g_) : vec3<T>(vec3<T>::Zero());  // exact for axis-aligned gravity
     w_ = up_.dot(air.wind);
     v_ = up_.dot(launch.velocity);
     h0_ = up_.dot(launch.position);
@@ -438,6 +438,8 @@ class linear_flight {
     const T G = G_;
     const bool turns = v < T(0) && G < T(0);
     const T t_turn = turns ? T(detail::log1p(T(k_ * v / G)) / k_) : T(0);
+    if (v >= T(0) && branch == side::falling)
+      return fail(errc::never_reaches, "the body never falls: the upward wind is at least the fall speed, wind", w_);
     if (v >= T(0) || branch == side::rising) {
       const T start = v >= T(0) ? T(0) : t_turn;
       if (v < T(0) && !turns) return fail(errc::never_reaches, "the body sinks towards a level it never passes, height change", dh);
