@@ -5,6 +5,7 @@
 /// output). Internal building blocks of `integrated_flight`; all state lives on the stack.
 
 #include <algorithm>
+#include <cmath>
 
 #include "lob/core/real.hpp"
 #include "lob/core/vec.hpp"
@@ -26,33 +27,46 @@ struct dp5_stages {
   phase<T> k1, k3, k4, k5, k6, k7;
 };
 
-// Scaled root-mean-square norm of an error estimate, as in Hairer, Norsett & Wanner,
-// "Solving Ordinary Differential Equations I", 2nd ed. (1993), eq. II.4.11: each
-// component is divided by atol + rtol * max(|y0_i|, |y1_i|).
+// Scaled maximum norm of an error estimate (Hairer, Norsett & Wanner, "Solving Ordinary
+// Differential Equations I", 2nd ed. (1993), sec. II.4, with the max norm in place of
+// eq. 4.11's root mean square): each component is divided by
+// atol + rtol * max(|y0_i|, |y1_i|). The max norm lets no single component, such as the
+// short horizontal distance of a steep shot, take the whole error budget.
 template <Real T>
-[[nodiscard]] T scaled_rms(const phase<T>& err, const phase<T>& y0, const phase<T>& y1, const T& rtol,
+[[nodiscard]] T scaled_max(const phase<T>& err, const phase<T>& y0, const phase<T>& y1, const T& rtol,
                            const T& atol) {
   using std::abs;
   using std::max;
-  using std::sqrt;
-  T sum(0);
+  T worst(0);
   for (int i = 0; i < 3; ++i) {
     const T sp = atol + rtol * max(T(abs(y0.position[i])), T(abs(y1.position[i])));
     const T sv = atol + rtol * max(T(abs(y0.velocity[i])), T(abs(y1.velocity[i])));
-    const T ep = err.position[i] / sp;
-    const T ev = err.velocity[i] / sv;
-    sum += ep * ep + ev * ev;
+    worst = max(worst, T(abs(err.position[i]) / sp));
+    worst = max(worst, T(abs(err.velocity[i]) / sv));
   }
-  return sqrt(T(sum / 6));
+  return worst;
 }
 
-/// One Dormand–Prince 5(4) step of size `h` from `y0` with k1 = f(y0) given.
-/// Tableau: J. R. Dormand & P. J. Prince, "A family of embedded Runge-Kutta formulae",
-/// J. Comput. Appl. Math. 6 (1980) 19-26 (table 2, the 5th-order solution is propagated).
-/// Writes the new phase to `y1`, the stages to `k` (k.k7 = f(y1)) and returns the scaled
-/// error norm of the embedded 4th-order difference (accept when <= 1).
-template <Real T, class Rhs>
-[[nodiscard]] T dp5_step(const Rhs& rhs, const phase<T>& y0, const phase<T>& k1, const T& h, phase<T>& y1,
+/// The phase derivative (velocity, acceleration) for an acceleration that depends on the
+/// velocity only, as gravity plus drag does.
+template <Real T, class Accel>
+[[nodiscard]] phase<T> derivative(const Accel& accel, const phase<T>& y) {
+  phase<T> d;
+  d.position = y.velocity;
+  d.velocity = accel(y.velocity);
+  return d;
+}
+
+/// One Dormand–Prince 5(4) step of size `h` from `y0` for x' = v, v' = accel(v), with
+/// k1 = derivative(accel, y0) given. Tableau: J. R. Dormand & P. J. Prince, "A family of
+/// embedded Runge-Kutta formulae", J. Comput. Appl. Math. 6 (1980) 19-26 (table 2; the
+/// 5th-order solution is propagated). Because the acceleration does not depend on the
+/// position, the stage positions are never needed and are not formed: each stage is the
+/// stage velocity and its acceleration, and the result is the same as the general step's.
+/// Writes the new phase to `y1`, the stages to `k` (k.k7 = f(y1), first same as last) and
+/// returns the scaled error norm of the embedded 4th-order difference (accept when <= 1).
+template <Real T, class Accel>
+[[nodiscard]] T dp5_step(const Accel& accel, const phase<T>& y0, const phase<T>& k1, const T& h, phase<T>& y1,
                          dp5_stages<T>& k, const T& rtol, const T& atol) {
   // Coefficients built from integers so that every type gets all its digits.
   const T a21 = T(1) / T(5);
@@ -68,38 +82,37 @@ template <Real T, class Rhs>
   const T e1 = T(71) / T(57600), e3 = T(-71) / T(16695), e4 = T(71) / T(1920),
           e5 = T(-17253) / T(339200), e6 = T(22) / T(525), e7 = T(-1) / T(40);
 
-  k.k1 = k1;
-  phase<T> y;
-  y.position = y0.position + h * (a21 * k1.position);
-  y.velocity = y0.velocity + h * (a21 * k1.velocity);
-  const phase<T> k2 = rhs(y);
-  y.position = y0.position + h * (a31 * k1.position + a32 * k2.position);
-  y.velocity = y0.velocity + h * (a31 * k1.velocity + a32 * k2.velocity);
-  k.k3 = rhs(y);
-  y.position = y0.position + h * (a41 * k1.position + a42 * k2.position + a43 * k.k3.position);
-  y.velocity = y0.velocity + h * (a41 * k1.velocity + a42 * k2.velocity + a43 * k.k3.velocity);
-  k.k4 = rhs(y);
-  y.position = y0.position + h * (a51 * k1.position + a52 * k2.position + a53 * k.k3.position +
-                                  a54 * k.k4.position);
-  y.velocity = y0.velocity + h * (a51 * k1.velocity + a52 * k2.velocity + a53 * k.k3.velocity +
-                                  a54 * k.k4.velocity);
-  k.k5 = rhs(y);
-  y.position = y0.position + h * (a61 * k1.position + a62 * k2.position + a63 * k.k3.position +
-                                  a64 * k.k4.position + a65 * k.k5.position);
-  y.velocity = y0.velocity + h * (a61 * k1.velocity + a62 * k2.velocity + a63 * k.k3.velocity +
-                                  a64 * k.k4.velocity + a65 * k.k5.velocity);
-  k.k6 = rhs(y);
-  y1.position = y0.position + h * (b1 * k1.position + b3 * k.k3.position + b4 * k.k4.position +
-                                   b5 * k.k5.position + b6 * k.k6.position);
-  y1.velocity = y0.velocity + h * (b1 * k1.velocity + b3 * k.k3.velocity + b4 * k.k4.velocity +
-                                   b5 * k.k5.velocity + b6 * k.k6.velocity);
-  k.k7 = rhs(y1);
+  // Everything in locals first: the outputs may alias the inputs (k7 becomes the next
+  // k1), and locals let the compiler keep the stages in registers.
+  const vec3<T> p0 = y0.position;
+  const vec3<T> v0 = y0.velocity;
+  const vec3<T> f1 = k1.velocity;
+  const vec3<T> v2 = v0 + h * (a21 * f1);
+  const vec3<T> f2 = accel(v2);
+  const vec3<T> v3 = v0 + h * (a31 * f1 + a32 * f2);
+  const vec3<T> f3 = accel(v3);
+  const vec3<T> v4 = v0 + h * (a41 * f1 + a42 * f2 + a43 * f3);
+  const vec3<T> f4 = accel(v4);
+  const vec3<T> v5 = v0 + h * (a51 * f1 + a52 * f2 + a53 * f3 + a54 * f4);
+  const vec3<T> f5 = accel(v5);
+  const vec3<T> v6 = v0 + h * (a61 * f1 + a62 * f2 + a63 * f3 + a64 * f4 + a65 * f5);
+  const vec3<T> f6 = accel(v6);
+  const vec3<T> v7 = v0 + h * (b1 * f1 + b3 * f3 + b4 * f4 + b5 * f5 + b6 * f6);
+  const vec3<T> p7 = p0 + h * (b1 * v0 + b3 * v3 + b4 * v4 + b5 * v5 + b6 * v6);
+  const vec3<T> f7 = accel(v7);
   phase<T> err;
-  err.position = h * (e1 * k1.position + e3 * k.k3.position + e4 * k.k4.position + e5 * k.k5.position +
-                      e6 * k.k6.position + e7 * k.k7.position);
-  err.velocity = h * (e1 * k1.velocity + e3 * k.k3.velocity + e4 * k.k4.velocity + e5 * k.k5.velocity +
-                      e6 * k.k6.velocity + e7 * k.k7.velocity);
-  return scaled_rms(err, y0, y1, rtol, atol);
+  err.position = h * (e1 * v0 + e3 * v3 + e4 * v4 + e5 * v5 + e6 * v6 + e7 * v7);
+  err.velocity = h * (e1 * f1 + e3 * f3 + e4 * f4 + e5 * f5 + e6 * f6 + e7 * f7);
+  const phase<T> start{p0, v0};
+  y1.position = p7;
+  y1.velocity = v7;
+  k.k1 = phase<T>{v0, f1};
+  k.k3 = phase<T>{v3, f3};
+  k.k4 = phase<T>{v4, f4};
+  k.k5 = phase<T>{v5, f5};
+  k.k6 = phase<T>{v6, f6};
+  k.k7 = phase<T>{v7, f7};
+  return scaled_max(err, start, phase<T>{p7, v7}, rtol, atol);
 }
 
 /// The continuous extension of one Dormand–Prince step: a polynomial of degree 4 in
@@ -148,35 +161,35 @@ class dp5_dense {
 /// Proportional–integral step-size control (Gustafsson's controller in the form of
 /// Hairer, Norsett & Wanner, "Solving ODEs I", sec. IV.2 and the DOPRI5 code):
 /// h_new = h * safety * err^-(1/5 - 0.75 beta) * err_old^beta, beta = 0.04, the factor
-/// kept in [1/5, 10] (and <= 1 right after a rejection).
+/// kept in [1/5, 10] (and <= 1 right after a rejection). A step-size factor needs only a
+/// few digits, so it is computed in float from log2 of the error norms for every T (one
+/// log2 and one exp2 per step; a multiprecision pow would cost more than the step).
 template <Real T>
 class pi_controller {
  public:
   /// The next step size after a step of size `h` with error norm `err`.
   [[nodiscard]] T next(const T& h, const T& err, bool accepted) {
-    using std::max;
-    using std::min;
-    using std::pow;
-    const T beta = T(4) / T(100);
-    const T alpha = T(1) / T(5) - T(3) / T(4) * beta;
-    const T safety = T(9) / T(10);
-    const T e = max(err, T(1) / T(1000000000));
-    T factor;
+    constexpr float beta = 0.04f;
+    constexpr float alpha = 0.2f - 0.75f * beta;
+    constexpr float safety = 0.9f;
+    const float e = std::max(static_cast<float>(err), 1e-9f);
+    const float log_e = std::log2(e);
+    float factor;
     if (accepted) {
-      factor = safety * T(pow(e, T(-alpha))) * T(pow(err_old_, beta));
-      factor = min(T(10), max(T(1) / T(5), factor));
-      if (rejected_) factor = min(factor, T(1));
-      err_old_ = max(err, T(1) / T(10000));
+      factor = safety * std::exp2(-alpha * log_e + beta * log_old_);
+      factor = std::min(10.0f, std::max(0.2f, factor));
+      if (rejected_) factor = std::min(factor, 1.0f);
+      log_old_ = std::max(log_e, -13.287712f);  // err_old >= 1e-4
       rejected_ = false;
     } else {
-      factor = max(T(1) / T(5), T(safety * T(pow(e, T(-1) / T(5)))));
+      factor = std::max(0.2f, safety * std::exp2(-0.2f * log_e));
       rejected_ = true;
     }
-    return T(h * factor);
+    return T(h * T(factor));
   }
 
  private:
-  T err_old_ = T(1) / T(10000);
+  float log_old_ = -13.287712f;  // log2(1e-4), Hairer's starting err_old
   bool rejected_ = false;
 };
 
@@ -184,8 +197,8 @@ class pi_controller {
 /// "Starting step size"): an explicit Euler probe estimates the second derivative, and
 /// the step makes the local error of a 5th-order method about the tolerance. Costs one
 /// evaluation of f. Never more than `h_max`.
-template <Real T, class Rhs>
-[[nodiscard]] T dp5_initial_step(const Rhs& rhs, const phase<T>& y0, const phase<T>& f0, const T& rtol,
+template <Real T, class Accel>
+[[nodiscard]] T dp5_initial_step(const Accel& accel, const phase<T>& y0, const phase<T>& f0, const T& rtol,
                                  const T& atol, const T& h_max) {
   using std::abs;
   using std::max;
@@ -205,7 +218,7 @@ template <Real T, class Rhs>
   phase<T> y1;
   y1.position = y0.position + h * f0.position;
   y1.velocity = y0.velocity + h * f0.velocity;
-  const phase<T> f1 = rhs(y1);
+  const phase<T> f1 = derivative(accel, y1);
   T der2(0);
   for (int i = 0; i < 3; ++i) {
     const T sp = atol + rtol * T(abs(y0.position[i]));

@@ -8,26 +8,24 @@
 
 namespace lob::detail {
 
-/// One classical Runge–Kutta step (Kutta 1901; order 4) of size `h` from `y0` with
-/// k1 = f(y0) given. The operations are always the same and in the same order, so a run
-/// is reproducible bit for bit on one build.
-template <Real T, class Rhs>
-[[nodiscard]] phase<T> rk4_step(const Rhs& rhs, const phase<T>& y0, const phase<T>& k1, const T& h) {
+/// One classical Runge–Kutta step (Kutta 1901; order 4) of size `h` from `y0` for
+/// x' = v, v' = accel(v), with k1 = derivative(accel, y0) given. The stage positions are
+/// not needed (the acceleration depends on the velocity only) and are not formed. The
+/// operations are always the same and in the same order, so a run is reproducible bit
+/// for bit on one build.
+template <Real T, class Accel>
+[[nodiscard]] phase<T> rk4_step(const Accel& accel, const phase<T>& y0, const phase<T>& k1, const T& h) {
   const T half = h / T(2);
-  phase<T> y;
-  y.position = y0.position + half * k1.position;
-  y.velocity = y0.velocity + half * k1.velocity;
-  const phase<T> k2 = rhs(y);
-  y.position = y0.position + half * k2.position;
-  y.velocity = y0.velocity + half * k2.velocity;
-  const phase<T> k3 = rhs(y);
-  y.position = y0.position + h * k3.position;
-  y.velocity = y0.velocity + h * k3.velocity;
-  const phase<T> k4 = rhs(y);
+  const vec3<T> v2 = y0.velocity + half * k1.velocity;
+  const vec3<T> a2 = accel(v2);
+  const vec3<T> v3 = y0.velocity + half * a2;
+  const vec3<T> a3 = accel(v3);
+  const vec3<T> v4 = y0.velocity + h * a3;
+  const vec3<T> a4 = accel(v4);
   const T sixth = h / T(6);
   phase<T> y1;
-  y1.position = y0.position + sixth * (k1.position + T(2) * k2.position + T(2) * k3.position + k4.position);
-  y1.velocity = y0.velocity + sixth * (k1.velocity + T(2) * k2.velocity + T(2) * k3.velocity + k4.velocity);
+  y1.position = y0.position + sixth * (y0.velocity + T(2) * v2 + T(2) * v3 + v4);
+  y1.velocity = y0.velocity + sixth * (k1.velocity + T(2) * a2 + T(2) * a3 + a4);
   return y1;
 }
 

@@ -18,6 +18,7 @@
 #include "lob/detail/math.hpp"
 #include "lob/integrate/dormand_prince.hpp"
 #include "lob/integrate/fixed_step.hpp"
+#include "lob/integrate/hodograph.hpp"
 #include "lob/models/traits.hpp"
 
 namespace lob {
@@ -116,7 +117,7 @@ class integrated_flight {
     if (!is_finite(height)) return fail(errc::invalid_argument, "height must be finite", height);
     if (g_ == T(0)) return fail(errc::invalid_argument, "height crossings need gravity, got |g| =", g_);
     const T dh = height - h0_;
-    if (lifted_) return lifted_crossing(height, dh, branch);
+    if (lifted_) return lifted_crossing(dh, branch);
     if (!(climb0_ > T(0))) {  // no rising branch: the launch is the top
       if (dh > T(0)) return fail(errc::never_reaches, "height is above the apex by", dh);
       if (dh == T(0)) return make_state(T(0), y0_);
@@ -131,7 +132,7 @@ class integrated_flight {
     }
     result<state<T>> out = fail(errc::no_convergence, "height crossing was not reached");
     const status walked = walk([&](const auto& p) {
-      const auto f = [&](const T& s) { return T(up_.dot(p.at(s).position) - height); };
+      const auto f = [&](const T& s) { return T(up_.dot(p.at(s).position) - dh); };
       if (branch == side::rising) {
         if (p.branch != tag::rising) return false;
         const T fa = f(p.t0);
@@ -141,7 +142,7 @@ class integrated_flight {
           return true;
         }
         if (p.ends_at_apex) {
-          out = fail(errc::never_reaches, "height is above the apex by", T(height - up_.dot(p.y1.position)));
+          out = fail(errc::never_reaches, "height is above the apex by", T(dh - up_.dot(p.y1.position)));
           return true;
         }
         return false;
@@ -149,11 +150,11 @@ class integrated_flight {
       if (p.branch == tag::rising) {
         if (!p.ends_at_apex) return false;
         const T top = up_.dot(p.y1.position);
-        if (top < height) {
-          out = fail(errc::never_reaches, "height is above the apex by", T(height - top));
+        if (top < dh) {
+          out = fail(errc::never_reaches, "height is above the apex by", T(dh - top));
           return true;
         }
-        if (top == height) {
+        if (top == dh) {
           out = make_state(p.t1, p.y1);
           return true;
         }
@@ -193,7 +194,7 @@ class integrated_flight {
     if (distance == T(0)) return make_state(T(0), y0_);
     result<state<T>> out = fail(errc::no_convergence, "distance was not reached");
     const status walked = walk([&](const auto& p) {
-      const auto f = [&](const T& s) { return T(horizontal_distance(p.at(s).position) - distance); };
+      const auto f = [&](const T& s) { return T(level_distance(p.at(s).position) - distance); };
       const T fa = f(p.t0);
       const T fb = f(p.t1);
       if (!(fa < T(0) && fb >= T(0))) return false;
@@ -238,16 +239,13 @@ class integrated_flight {
  private:
   enum class tag { rising, falling, any };
 
-  // The right-hand side of the equations of motion for the phase (position, velocity).
-  struct rhs_fn {
+  // The acceleration of the body for its velocity: gravity plus drag in the moving air.
+  struct accel_fn {
     const M* model;
     vec3<T> gravity;
     vec3<T> wind;
-    [[nodiscard]] detail::phase<T> operator()(const detail::phase<T>& y) const {
-      detail::phase<T> d;
-      d.position = y.velocity;
-      d.velocity = gravity + vec3<T>(model->acceleration(vec3<T>(y.velocity - wind)));
-      return d;
+    [[nodiscard]] vec3<T> operator()(const vec3<T>& v) const {
+      return vec3<T>(gravity + vec3<T>(model->acceleration(vec3<T>(v - wind))));
     }
   };
 
@@ -292,7 +290,9 @@ class integrated_flight {
     w_up_ = up_.dot(air.wind);
     climb0_ = up_.dot(launch.velocity);
     h0_ = up_.dot(launch.position);
-    y0_.position = launch.position;
+    // Positions are integrated relative to the launch point: the error control and the
+    // events then do not depend on where the world origin is.
+    y0_.position = vec3<T>::Zero();
     y0_.velocity = launch.velocity;
     // An updraft lifts the body for good when, at zero vertical velocity (air streaming
     // down past it at the updraft speed), drag pushes up at least as hard as gravity pulls:
@@ -303,13 +303,24 @@ class integrated_flight {
       lifted_ = T(up_.dot(drag)) >= g_;
     }
     apex_pending_ = g_ > T(0) && !lifted_ && climb0_ > T(0);
-    // Roundoff floor: below about 10 eps the error estimate is noise.
-    rtol_ = max(T(options.relative_tolerance), T(10 * detail::epsilon<T>()));
-    atol_ = options.absolute_tolerance;
+    // The steps are controlled at half the requested tolerances: the local error control
+    // then keeps the global error of landing time, range and apex below the request over
+    // the measured cases (tests/integrate/reference_test.cpp). Roundoff floor: below about
+    // 10 eps the error estimate is noise.
+    rtol_ = max(T(options.relative_tolerance / 2), T(10 * detail::epsilon<T>()));
+    atol_ = T(options.absolute_tolerance / 2);
     if constexpr (model_traits<M>::quadratic_fast_path) {
       c_ = model_traits<M>::quadratic_coefficient(model);
       fast_ = options.use_fast_paths && options.method == stepper::adaptive && air.wind == vec3<T>::Zero() &&
               c_ > T(0) && g_ > T(0) && launch.velocity != vec3<T>::Zero();
+      if (fast_) {
+        using std::atan2;
+        const vec3<T> level = launch.velocity - climb0_ * up_;
+        const T level_speed = sqrt(T(level.squaredNorm()));
+        level_ = level_speed > T(0) ? vec3<T>(level / level_speed) : vec3<T>(vec3<T>::Zero());
+        v0_ = sqrt(T(launch.velocity.squaredNorm()));
+        theta0_ = atan2(climb0_, level_speed);
+      }
     }
   }
 
@@ -336,14 +347,18 @@ class integrated_flight {
   [[nodiscard]] state<T> make_state(const T& t, const detail::phase<T>& y) const {
     state<T> s;
     s.time = t;
-    s.position = y.position;
+    s.position = launch_.position + y.position;
     s.velocity = y.velocity;
     return s;
   }
 
   [[nodiscard]] T horizontal_distance(const vec3<T>& position) const {
     using std::sqrt;
-    const vec3<T> d = position - launch_.position;
+    return level_distance(vec3<T>(position - launch_.position));
+  }
+  // The horizontal length of a displacement.
+  [[nodiscard]] T level_distance(const vec3<T>& d) const {
+    using std::sqrt;
     const vec3<T> level = d - T(up_.dot(d)) * up_;
     return sqrt(T(level.squaredNorm()));
   }
@@ -387,9 +402,9 @@ class integrated_flight {
   [[nodiscard]] status walk_adaptive(const Visit& visit) const {
     using std::abs;
     using std::min;
-    const rhs_fn f{&model_, air_.gravity, air_.wind};
+    const accel_fn f{&model_, air_.gravity, air_.wind};
     detail::phase<T> y = y0_;
-    detail::phase<T> fy = f(y);
+    detail::phase<T> fy = detail::derivative(f, y);
     detail::phase<T> y1;
     detail::dp5_stages<T> k;
     detail::pi_controller<T> control;
@@ -443,11 +458,11 @@ class integrated_flight {
 
   template <class Visit>
   [[nodiscard]] status walk_fixed(const Visit& visit) const {
-    const rhs_fn f{&model_, air_.gravity, air_.wind};
+    const accel_fn f{&model_, air_.gravity, air_.wind};
     const T h = options_.fixed_step;
     const bool rk4 = options_.method == stepper::rk4;
     detail::phase<T> y = y0_;
-    detail::phase<T> fy = f(y);
+    detail::phase<T> fy = detail::derivative(f, y);
     bool before_apex = apex_pending_;
     for (std::int64_t n = 0;; ++n) {
       // Step times from the step count, never by summing h, so that they do not drift.
@@ -458,7 +473,7 @@ class integrated_flight {
         return fail(errc::step_limit, "integration used its whole step budget (max_steps) at t =", t0);
       const T t1 = T(n + 1) * h;
       const detail::phase<T> y1 = rk4 ? detail::rk4_step(f, y, fy, h) : detail::semi_implicit_euler_step(y, fy, h);
-      const detail::phase<T> f1 = f(y1);
+      const detail::phase<T> f1 = detail::derivative(f, y1);
       const detail::hermite_piece<T> curve(t0, h, y, fy, y1, f1);
       if (before_apex && !(T(up_.dot(y1.velocity)) > T(0))) {
         const auto climb = [&](const T& s) { return T(up_.dot(curve(s).velocity)); };
@@ -479,7 +494,7 @@ class integrated_flight {
   // Under an updraft that lifts the body for good: it rises forever once its vertical
   // velocity is >= 0, so a falling crossing exists only while it still sinks after a
   // downward launch, and a rising crossing only above the lowest point.
-  [[nodiscard]] result<state<T>> lifted_crossing(const T& height, const T& dh, side branch) const {
+  [[nodiscard]] result<state<T>> lifted_crossing(const T& dh, side branch) const {
     if (branch == side::falling && climb0_ >= T(0))
       return fail(errc::never_reaches, "an updraft at least the fall speed carries the body up for good, wind =",
                   w_up_);
@@ -493,7 +508,7 @@ class integrated_flight {
     }
     result<state<T>> out = fail(errc::no_convergence, "height crossing was not reached");
     const status walked = walk([&](const auto& p) {
-      const auto f = [&](const T& s) { return T(up_.dot(p.at(s).position) - height); };
+      const auto f = [&](const T& s) { return T(up_.dot(p.at(s).position) - dh); };
       const T fa = f(p.t0);
       const T fb = f(p.t1);
       const bool rises_at_end = T(up_.dot(p.y1.velocity)) >= T(0);
@@ -514,7 +529,7 @@ class integrated_flight {
       }
       if (rises_at_end) {
         out = fail(errc::never_reaches, "the body turns up before it sinks to that height, short by",
-                   T(up_.dot(p.y1.position) - height));
+                   T(up_.dot(p.y1.position) - dh));
         return true;
       }
       return false;
@@ -523,10 +538,27 @@ class integrated_flight {
     return out;
   }
 
-  // The hodograph fast path (quadratic drag in still air); see integrate/hodograph.hpp.
-  [[nodiscard]] result<state<T>> fast_apex() const { return fail(errc::invalid_argument, "fast path"); }
-  [[nodiscard]] result<state<T>> fast_crossing(const T&, side) const {
-    return fail(errc::invalid_argument, "fast path");
+  // The hodograph fast path (quadratic drag in still air, integrate/hodograph.hpp): its
+  // answers are relative to the launch in the vertical plane of the launch velocity, so
+  // they are turned back into a 3-D state along that plane's level direction and "up".
+  [[nodiscard]] result<state<T>> fast_apex() const {
+    const result<detail::hodograph_point<T>> p = detail::hodograph_apex(c_, g_, v0_, theta0_);
+    if (!p) return unexpected<error>(p.error());
+    return from_hodograph(*p);
+  }
+  [[nodiscard]] result<state<T>> fast_crossing(const T& dh, side branch) const {
+    const result<detail::hodograph_point<T>> p = detail::hodograph_crossing(c_, g_, v0_, theta0_, dh, branch);
+    if (!p) return unexpected<error>(p.error());
+    return from_hodograph(*p);
+  }
+  [[nodiscard]] state<T> from_hodograph(const detail::hodograph_point<T>& p) const {
+    using std::cos;
+    using std::sin;
+    state<T> s;
+    s.time = p.time;
+    s.position = launch_.position + p.distance * level_ + p.rise * up_;
+    s.velocity = p.speed * (T(cos(p.inclination)) * level_ + T(sin(p.inclination)) * up_);
+    return s;
   }
 
   M model_;
@@ -541,7 +573,10 @@ class integrated_flight {
   T h0_{};       // launch height
   T rtol_{};
   T atol_{};
-  T c_{};        // quadratic coefficient, fast path only
+  T c_{};        // fast path only: quadratic coefficient,
+  T v0_{};       // launch speed,
+  T theta0_{};   // launch inclination,
+  vec3<T> level_ = vec3<T>::Zero();  // and level direction of the launch
   bool lifted_ = false;
   bool apex_pending_ = false;
   bool fast_ = false;
