@@ -17,7 +17,9 @@
 /// Press 1978, Table 5.2, a piecewise fit to the measurements; from memory) over each
 /// correlation's range, up to Re = 2e5 for Morrison, as measured in
 /// tests/physics/sphere_drag_test.cpp: they are what each formula achieves, not a claim
-/// copied from its source.
+/// copied from its source. Morrison's coefficients were checked against the author's
+/// "Data Correlation for Drag Coefficient for Sphere" (2016 note); those of
+/// Schiller–Naumann, Clift–Gauvin and Brown–Lawler are as recalled (from memory).
 
 #include <string_view>
 
