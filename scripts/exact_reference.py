@@ -22,7 +22,17 @@ the launch, wind off and on; plus seeded random cases over the same ranges.
 
 Run with Debian's interpreter (the python3 first on PATH has no mpmath):
     /usr/bin/python3 scripts/exact_reference.py > tests/data/exact_linear_reference.csv
+
+With --check-series the script instead checks the branch-point series coefficients in
+include/lob/detail/math.hpp (branch_coefficients): it derives them again by Lagrange
+inversion in exact rational arithmetic (u(p) solves -log1pmx(-u) = p^2/2), compares them
+to the header's literals, and compares p * sum_n c_n p^n with mpmath's lambertw,
+u = 1 + W(-exp(-p^2/2 - 1)), for |p| <= 1/2 on both branches. It exits non-zero on a
+mismatch.
 """
+import os
+import re
+from fractions import Fraction
 import random
 import sys
 
@@ -200,7 +210,57 @@ def cases():
     return out
 
 
+def series_coefficients(n):
+    """c_0 .. c_{n-1} of u(p)/p by Lagrange inversion, exactly."""
+    m = n + 2
+    # f(u) = u g(u), g = sqrt(1 + sum_{j>=1} 2 u^j/(j + 2)); u(p) = sum_n (1/n) [u^(n-1)] g^-n p^n
+    a = [Fraction(1)] + [Fraction(2, j + 2) for j in range(1, m)]
+    g = [Fraction(0)] * m
+    g[0] = Fraction(1)
+    for j in range(1, m):
+        g[j] = (a[j] - sum(g[i] * g[j - i] for i in range(1, j))) / 2
+    h = [Fraction(0)] * m
+    h[0] = Fraction(1)
+    for j in range(1, m):
+        h[j] = -sum(g[i] * h[j - i] for i in range(1, j + 1))
+    power = [Fraction(1)] + [Fraction(0)] * (m - 1)
+    out = []
+    for k in range(1, n + 1):
+        power = [sum(power[i] * h[j - i] for i in range(j + 1)) for j in range(m)]
+        out.append(power[k - 1] / k)
+    return out
+
+
+def check_series():
+    here = os.path.dirname(os.path.abspath(__file__))
+    text = open(os.path.join(here, "..", "include", "lob", "detail", "math.hpp")).read()
+    block = text[text.index("branch_coefficients[34] = {"):]
+    block = block[:block.index("};")]
+    literals = [mpf(x) for x in re.findall(r"T\(([-0-9.e]+)L\)", block)]
+    exact = series_coefficients(len(literals))
+    worst = mpf(0)
+    for lit, c in zip(literals, exact):
+        value = mpf(c.numerator) / c.denominator
+        worst = max(worst, abs(lit - value) / abs(value))
+    print("coefficients: %d, worst relative difference from exact %s" % (len(literals), mpmath.nstr(worst, 3)))
+    bad = worst > mpf(10) ** -22
+    worst = mpf(0)
+    for i in range(-50, 51):
+        p = mpf(i) / 100
+        if p == 0:
+            continue
+        z = -mpmath.exp(-p * p / 2 - 1)
+        u = 1 + mpmath.lambertw(z, 0 if p > 0 else -1).real
+        s_ = p * sum(c * p ** n for n, c in enumerate(literals))
+        worst = max(worst, abs(s_ - u) / abs(u))
+    print("series vs mpmath lambertw for |p| <= 1/2: worst relative difference %s" % mpmath.nstr(worst, 3))
+    bad = bad or worst > mpf(10) ** -20
+    sys.exit(1 if bad else 0)
+
+
 def main():
+    if "--check-series" in sys.argv:
+        check_series()
     all_cases = cases()
     print("# exact_linear_reference.csv: 50-digit reference flights under linear drag.")
     print("# Made by scripts/exact_reference.py (mpmath %s, seed 20261201): explicit z(t)," % mpmath.__version__)
