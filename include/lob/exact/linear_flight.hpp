@@ -17,8 +17,12 @@
 /// of z = -exp(-p^2/2 - 1) (far enough from -1/e to be well conditioned) otherwise.
 /// u(p)/k = sqrt(2 (H - dh)/G) * (u/p), so k = 0 is the vacuum formula with no special case
 /// and the transition is smooth. Every term is >= 0 on the falling branch of an upward or
-/// level shot, so nothing cancels there; the rising branch and downward shots, where terms
-/// of opposite sign meet, are polished by safeguarded Newton on the explicit height.
+/// level shot, so nothing cancels there and no iteration is needed (the reference tests
+/// show a few ulps). On the rising branch, where terms of opposite sign meet, the value is
+/// polished by safeguarded Newton on the explicit height. A downward shot has its apex in
+/// the past, so its crossing is solved in a form of positive terms instead (see
+/// downward_crossing). Measured against 50-digit references (tests/exact): double within
+/// 2e-15 relative in time, range, apex height and landing speed; float 1.1e-6.
 
 #include <cstdint>
 #include <limits>
