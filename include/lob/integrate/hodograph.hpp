@@ -5,6 +5,7 @@
 /// height are single integrals over the inclination, summed by Gauss–Legendre quadrature.
 /// Used by the integrated flight of `quadratic_drag` when there is no wind.
 
+#include <array>
 #include <cstdint>
 #include <limits>
 #include <type_traits>
@@ -65,12 +66,14 @@ struct hodograph_rule {
   // Only the tabulated rules of Boost.Math (7, 10, 15, 20, 25, 30 points) are used: the
   // others are computed on first use, on the heap.
   static constexpr unsigned points = digits <= 24 ? 10 : digits <= 53 ? 20 : digits <= 64 ? 25 : 30;
+  // The rule for the last, short Newton corrections (at most 1/1000 of a panel).
+  static constexpr unsigned short_points = digits <= 64 ? 7 : 15;
   /// Width of the constant panels [in tau].
-  static T width() { return digits <= 64 ? T(1) : T(1) / T(3); }
+  static T width() { return digits <= 64 ? T(2) : T(3) / T(4); }
   /// Growth ratio of the graded panels.
-  static T ratio() { return digits <= 64 ? T(3) : T(3) / T(2); }
+  static T ratio() { return digits <= 64 ? T(2) : T(7) / T(5); }
   /// First break times kappa.
-  static T first() { return digits <= 64 ? T(1) / T(2) : T(1) / T(4); }
+  static T first() { return digits <= 64 ? T(1) : T(1) / T(4); }
   /// Cap on the number of panels of one query.
   static constexpr int max_panels = 2000;
 };
@@ -108,21 +111,85 @@ struct hodograph_sums {
   }
 };
 
+/// sinh(x) for |x| < 1/2 by its Taylor series (relative accuracy near 0 without a call):
+/// for built-in types a fixed Horner polynomial to x^21 (the next term is below 1e-27
+/// relative), for wider types the series summed until its terms fall below epsilon.
+template <Real T>
+[[nodiscard]] T sinh_small(const T& x) {
+  const T x2 = x * x;
+  if constexpr (std::is_floating_point_v<T>) {
+    T p = T(1) / T(51090942171709440000.0L);  // 1/21!
+    constexpr long double inv[] = {1.0L / 121645100408832000.0L, 1.0L / 355687428096000.0L,
+                                   1.0L / 1307674368000.0L,      1.0L / 6227020800.0L,
+                                   1.0L / 39916800.0L,           1.0L / 362880.0L,
+                                   1.0L / 5040.0L,               1.0L / 120.0L,
+                                   1.0L / 6.0L,                  1.0L};
+    for (long double c : inv) p = p * x2 + T(c);
+    return p * x;
+  } else {
+    using std::abs;
+    const T eps = epsilon<T>();
+    T term = x;
+    T sum = x;
+    for (int k = 1; k < 60; ++k) {  // |x| < 1/2: 60 terms pass any precision
+      term *= x2 / T((2 * k) * (2 * k + 1));
+      sum += term;
+      if (abs(term) <= eps * abs(sum)) break;
+    }
+    return sum;
+  }
+}
+
+/// The three-term recurrence of the Legendre polynomials, P_k+1 = alpha_k x P_k - beta_k P_k-1,
+/// and 1/(2k+1), for k < N: constants for built-in types, built per call otherwise.
+template <Real T, unsigned N>
+struct legendre_table {
+  std::array<T, N> alpha{};
+  std::array<T, N> beta{};
+  std::array<T, N> inv_odd{};
+};
+
+template <Real T, unsigned N>
+[[nodiscard]] constexpr legendre_table<T, N> make_legendre_table() {
+  legendre_table<T, N> t;
+  for (unsigned k = 0; k < N; ++k) {
+    t.alpha[k] = T(2 * k + 1) / T(k + 1);
+    t.beta[k] = T(k) / T(k + 1);
+    t.inv_odd[k] = T(1) / T(2 * k + 1);
+  }
+  return t;
+}
+
+template <Real T, unsigned N>
+[[nodiscard]] legendre_table<T, N> legendre_constants() {
+  if constexpr (std::is_floating_point_v<T>) {
+    static constexpr legendre_table<T, N> table = make_legendre_table<T, N>();
+    return table;
+  } else {
+    return make_legendre_table<T, N>();
+  }
+}
+
 /// A launch under quadratic drag in still air, not exactly vertical, with validated inputs;
 /// the quadrature over tau = asinh(tan theta0) - asinh(tan phi) lives here.
 template <Real T>
 class hodograph_path {
  public:
-  hodograph_path(const T& c, const T& g, const T& v0, const T& theta0) : c_(c), g_(g), v0_(v0), theta0_(theta0) {
+  static constexpr unsigned points = hodograph_rule<T>::points;
+  static constexpr unsigned half_points = (points + 1) / 2;
+  using gauss = boost::math::quadrature::gauss<T, points, no_throw_policy>;
+
+  hodograph_path(const T& c, const T& g, const T& v0, const T& theta0) : g_(g), v0_(v0), theta0_(theta0) {
     using std::cos;
-    using std::exp;
     using std::log;
     using std::sin;
     const T cos0 = cos(theta0);
     const T sin0 = sin(theta0);
     // e^sigma0 = sec + tan, written without cancellation for a downward launch.
     e0_ = theta0 >= T(0) ? T((T(1) + sin0) / cos0) : T(cos0 / (T(1) - sin0));
-    sigma0_ = log(e0_);
+    ie0_ = T(1) / e0_;
+    // asinh keeps sigma0 relative-accurate for shallow launches (log(e0) near 1 would not).
+    sigma0_ = boost::math::asinh(T(sin0 / cos0), no_throw_policy{});
     kappa_ = c * v0 * v0 / g;
     kc_ = kappa_ * cos0 * cos0;
     u0_ = v0 * cos0;
@@ -134,38 +201,44 @@ class hodograph_path {
   [[nodiscard]] const T& sigma0() const { return sigma0_; }
   [[nodiscard]] const T& tau_max() const { return tau_max_; }
 
-  // Rates of (g t, g x, g y) with respect to tau, and the speed, at tau.
+  // sinh and cosh of sigma = sigma0 - tau, and the horizontal velocity u, at tau.
   struct local {
     T sinh_sigma;
     T cosh_sigma;
-    T u;  // horizontal velocity [m/s]
+    T u;  // [m/s]
   };
 
+  // One exponential per node: e^tau (expm1 near 0, where sinh(tau) must keep its digits);
+  // e^sigma = e^sigma0 / e^tau keeps its relative accuracy for any sigma; sinh(sigma)
+  // near the apex (|sigma| < 1/2) from its series, where (e - 1/e)/2 would cancel.
   [[nodiscard]] local at(const T& tau) const {
+    using std::abs;
+    using std::exp;
     using std::sqrt;
-    const T emt = detail::expm1(tau);
-    const T et = T(1) + emt;
-    const T sinh_tau = (emt + emt / et) / 2;
-    const T es = e0_ / et;  // e^sigma, relative-accurate for any sigma
-    const T ies = et / e0_;
+    T et;
+    T emt;
+    if (tau < T(1) / T(2)) {
+      emt = detail::expm1(tau);
+      et = T(1) + emt;
+    } else {
+      et = exp(tau);
+      emt = et - T(1);
+    }
+    const T es = e0_ / et;   // e^sigma
+    const T iet = es * ie0_;  // e^-tau
+    const T ies = et * ie0_;  // e^-sigma
+    const T sinh_tau = (emt + emt * iet) / 2;
+    const T sigma = sigma0_ - tau;
     local p;
     p.cosh_sigma = (es + ies) / 2;
-    const T sigma = sigma0_ - tau;
-    using std::abs;
-    if (abs(sigma) < T(1) / T(2)) {
-      // near the apex sinh(sigma) = (e - 1/e)/2 would cancel
-      const T ems = detail::expm1(sigma);
-      p.sinh_sigma = (ems + ems / (T(1) + ems)) / 2;
-    } else {
-      p.sinh_sigma = (es - ies) / 2;
-    }
-    const T ep = e0_ * es;  // e^(sigma0 + sigma)
-    const T cosh_sum = (ep + T(1) / ep) / 2;
+    p.sinh_sigma = abs(sigma) < T(1) / T(2) ? sinh_small(sigma) : T((es - ies) / 2);
+    const T cosh_sum = (e0_ * es + ies * ie0_) / 2;  // cosh(sigma0 + sigma)
     const T q = T(1) + kc_ * (cosh_sum * sinh_tau + tau);
     p.u = u0_ / sqrt(q);
     return p;
   }
 
+  // Rates of (g t, g x, g y) with respect to tau.
   [[nodiscard]] hodograph_sums<T> rates(const T& tau) const {
     const local p = at(tau);
     const T v = p.u * p.cosh_sigma;
@@ -173,22 +246,55 @@ class hodograph_path {
     return {v, uv, T(uv * p.sinh_sigma)};
   }
 
-  // dy/dtau [m].
+  // dy/dtau [m], the closed-form derivative the Newton iteration uses.
   [[nodiscard]] T rise_rate(const T& tau) const {
     const local p = at(tau);
     return T(p.u * p.u * p.cosh_sigma * p.sinh_sigma / g_);
   }
 
-  // (t, x, y) gained from tau = a to tau = b, by the N-point Gauss–Legendre rule.
-  [[nodiscard]] hodograph_sums<T> integral(const T& a, const T& b) const {
-    using rule = boost::math::quadrature::gauss<T, hodograph_rule<T>::points, no_throw_policy>;
+  // The rise rates g dy/dtau at the Gauss nodes of the last panel, for its interpolant:
+  // plus[i] at z = +x_i, minus[i] at z = -x_i (x_i Boost's non-negative abscissae).
+  struct node_rates {
+    std::array<T, half_points> plus;
+    std::array<T, half_points> minus;
+  };
+
+  // (t, x, y) gained from tau = a to tau = b, by the N-point Gauss–Legendre rule (Boost's
+  // tabulated nodes and weights); the rise rates at the nodes are kept in `keep`.
+  [[nodiscard]] hodograph_sums<T> integral(const T& a, const T& b, node_rates* keep = nullptr) const {
+    const T mid = (a + b) / 2;
+    const T half = (b - a) / 2;
+    const auto& x = gauss::abscissa();
+    const auto& w = gauss::weights();
+    hodograph_sums<T> s(T(0));
+    for (unsigned i = 0; i < half_points; ++i) {
+      if (i == 0 && (points & 1u)) {
+        const hodograph_sums<T> f = rates(mid);
+        s += f * w[0];
+        if (keep) keep->plus[0] = keep->minus[0] = f.rise;
+        continue;
+      }
+      const hodograph_sums<T> fp = rates(T(mid + half * x[i]));
+      const hodograph_sums<T> fm = rates(T(mid - half * x[i]));
+      s += (fp + fm) * w[i];
+      if (keep) {
+        keep->plus[i] = fp.rise;
+        keep->minus[i] = fm.rise;
+      }
+    }
+    return s * T(half / g_);
+  }
+
+  // The same with Boost's short rule, for Newton corrections of at most 1/1000 of a panel.
+  [[nodiscard]] hodograph_sums<T> short_integral(const T& a, const T& b) const {
+    using rule = boost::math::quadrature::gauss<T, hodograph_rule<T>::short_points, no_throw_policy>;
     const T mid = (a + b) / 2;
     const T half = (b - a) / 2;
     const hodograph_sums<T> s = rule::integrate([&](const T& z) { return rates(T(mid + half * z)); });
     return s * T(half / g_);
   }
 
-  // The next panel break after tau (graded, then constant width).
+  // The next panel break after tau: graded from the launch, then of constant width.
   [[nodiscard]] T next_break(const T& tau) const {
     using rule = hodograph_rule<T>;
     T first = rule::first() / kappa_;
@@ -199,24 +305,30 @@ class hodograph_path {
     return graded < level ? graded : level;
   }
 
+  // As next_break, but a first panel shorter than half the one after it is merged into
+  // it (the panel after a cut at the apex), so that no node is spent on a sliver.
+  [[nodiscard]] T next_break_merged(const T& tau) const {
+    const T b = next_break(tau);
+    const T after = next_break(b);
+    return T(b - tau) < T(after - b) / 2 ? after : b;
+  }
+
   [[nodiscard]] hodograph_point<T> point(const T& tau, const hodograph_sums<T>& s) const {
     using std::atan;
     const local p = at(tau);
-    hodograph_point<T> r{s.time, s.distance, s.rise, T(p.u * p.cosh_sigma), T(atan(p.sinh_sigma))};
-    return r;
+    return {s.time, s.distance, s.rise, T(p.u * p.cosh_sigma), T(atan(p.sinh_sigma))};
   }
 
-  [[nodiscard]] hodograph_point<T> launch_point() const {
-    return {T(0), T(0), T(0), v0_, theta0_};
-  }
+  [[nodiscard]] hodograph_point<T> launch_point() const { return {T(0), T(0), T(0), v0_, theta0_}; }
 
-  // Sums from tau = 0 to the apex tau = sigma0 (> 0).
+  // Sums from tau = 0 to the apex tau = sigma0 (> 0). The last panel is stretched to the
+  // apex when the apex lies less than half a panel beyond a break.
   [[nodiscard]] result<hodograph_sums<T>> ascent() const {
     hodograph_sums<T> s(T(0));
     T a(0);
     for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
       T b = next_break(a);
-      if (b > sigma0_) b = sigma0_;
+      if (!(sigma0_ > b + T(b - a) / 2)) b = sigma0_;
       s += integral(a, b);
       if (b == sigma0_) return s;
       a = b;
@@ -228,11 +340,12 @@ class hodograph_path {
   // the direction `dir` (+1: ascent, heights increase; -1: descent), up to tau = end.
   [[nodiscard]] result<hodograph_point<T>> search(T a, hodograph_sums<T> s, const T& rise, int dir,
                                                   const T& end) const {
+    node_rates nodes;
     for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
-      T b = next_break(a);
+      T b = k == 0 ? next_break_merged(a) : next_break(a);
       if (b > end) b = end;
-      const hodograph_sums<T> sb = s + integral(a, b);
-      if (T(dir) * T(sb.rise - rise) >= T(0)) return polish(a, s, b, sb, rise, dir);
+      const hodograph_sums<T> sb = s + integral(a, b, &nodes);
+      if (T(dir) * T(sb.rise - rise) >= T(0)) return polish(a, s, b, sb, nodes, rise, dir);
       if (b == end) break;
       a = b;
       s = sb;
@@ -240,21 +353,92 @@ class hodograph_path {
     return fail(errc::no_convergence, "height crossing lies beyond the quadrature's reach, height", rise);
   }
 
+  // The root of the panel's interpolant of y: y(z) = y_a + (half/g) int_-1^z p, with p
+  // the Legendre series through the N node rates (its coefficients from the discrete
+  // orthogonality of the Gauss nodes, its integral from int P_k = (P_k+1 - P_k-1)/(2k+1)),
+  // solved by a safeguarded Newton iteration in z. Costs no evaluation of the integrand
+  // and is accurate to about the interpolation error of the panel, so that one or two
+  // true Newton steps finish the job.
+  [[nodiscard]] T interpolated_root(const T& a, const T& b, const T& ya, const T& yb, const node_rates& nodes,
+                                    const T& rise, int dir) const {
+    using std::abs;
+    const auto& x = gauss::abscissa();
+    const auto& w = gauss::weights();
+    const legendre_table<T, points> lt = legendre_constants<T, points>();
+    std::array<T, points> coef;
+    for (unsigned k = 0; k < points; ++k) coef[k] = T(0);
+    for (unsigned i = 0; i < half_points; ++i) {
+      const bool centre = i == 0 && (points & 1u);
+      // even and odd parts of the node pair, weighted: P_k(-x) = (-1)^k P_k(x)
+      const T even = centre ? T(w[i] * nodes.plus[i]) : T(w[i] * T(nodes.plus[i] + nodes.minus[i]));
+      const T odd = centre ? T(0) : T(w[i] * T(nodes.plus[i] - nodes.minus[i]));
+      T p_prev(0);
+      T p(1);
+      for (unsigned k = 0; k < points; ++k) {
+        coef[k] += ((k & 1u) ? odd : even) * p;
+        const T p_next = lt.alpha[k] * x[i] * p - lt.beta[k] * p_prev;
+        p_prev = p;
+        p = p_next;
+      }
+    }
+    const T scale = (b - a) / 2 / g_;
+    for (unsigned k = 0; k < points; ++k) coef[k] *= scale / (lt.inv_odd[k] * 2);
+    // F(z) = dir (y(z) - rise) and F'(z), increasing from F(-1) < 0 to F(1) >= 0.
+    const auto eval = [&](const T& z, T& slope) {
+      T p_prev(1);
+      T p(z);
+      T value = coef[0] * (z + T(1));
+      slope = coef[0];
+      for (unsigned k = 1; k < points; ++k) {
+        const T p_next = lt.alpha[k] * z * p - lt.beta[k] * p_prev;
+        value += coef[k] * (p_next - p_prev) * lt.inv_odd[k];
+        slope += coef[k] * p;
+        p_prev = p;
+        p = p_next;
+      }
+      slope *= T(dir);
+      return T(T(dir) * T(ya + value - rise));
+    };
+    T lo(-1);
+    T hi(1);
+    T z = T(-1) + 2 * T((rise - ya) / (yb - ya));
+    if (!(z > lo && z < hi)) z = T(0);
+    const T eps = epsilon<T>();
+    for (int i = 0; i < 60; ++i) {
+      T slope;
+      const T f = eval(z, slope);
+      if (f == T(0)) break;
+      if (f < T(0)) lo = z;
+      else hi = z;
+      T next = (lo + hi) / 2;
+      if (slope > T(0)) {
+        const T newton = z - f / slope;
+        if (newton > lo && newton < hi) next = newton;
+      }
+      const T step = abs(T(next - z));
+      z = next;
+      if (step <= 4 * eps || !(hi - lo > 4 * eps)) break;
+    }
+    return T((a + b) / 2 + (b - a) / 2 * z);
+  }
+
   // Safeguarded Newton iteration on y(tau) = rise inside the panel [a, b], where
-  // dir * (y - rise) is < 0 at a and >= 0 at b. dy/dtau is known in closed form; each step
-  // integrates only from the previous iterate, so late steps cost little error.
+  // dir * (y - rise) is < 0 at a and >= 0 at b, from the interpolated root. dy/dtau is
+  // known in closed form. Each step integrates from the panel start or, for a short
+  // step, from the previous iterate (with the short rule when it is very short), so
+  // that rounding does not pile up along a long detour.
   [[nodiscard]] result<hodograph_point<T>> polish(const T& a, const hodograph_sums<T>& sa, const T& b,
-                                                  const hodograph_sums<T>& sb, const T& rise,
-                                                  int dir) const {
+                                                  const hodograph_sums<T>& sb, const node_rates& nodes,
+                                                  const T& rise, int dir) const {
     using std::abs;
     const T eps = epsilon<T>();
     if (sb.rise == rise) return finish(b, sb, rise);
     T lo = a;
     T hi = b;
-    // First guess: linear interpolation between the panel ends.
-    T tau = a + (b - a) * T((rise - sa.rise) / (sb.rise - sa.rise));
+    T tau = interpolated_root(a, b, sa.rise, sb.rise, nodes, rise, dir);
     if (!(tau > lo && tau < hi)) tau = (lo + hi) / 2;
     hodograph_sums<T> s = sa + integral(a, tau);
+    T last_delta = b - a;
     for (int i = 0; i < 100; ++i) {
       const T f = T(dir) * T(s.rise - rise);  // increasing in tau on [lo, hi]
       if (f == T(0)) return finish(tau, s, rise);
@@ -264,13 +448,20 @@ class hodograph_path {
       T next = (lo + hi) / 2;
       if (slope > T(0)) {
         const T delta = f / slope;
-        // Newton's next step would change tau by no more than rounding: converged.
+        // Converged when the step is below rounding, or stops shrinking once it is tiny
+        // (rounding in y, not distance to the root, drives it).
         if (abs(delta) <= 2 * eps * tau) return finish(tau, s, rise);
+        if (abs(delta) <= eps * T(1024) * (b - a) && abs(delta) > abs(last_delta) / 4)
+          return finish(tau, s, rise);
+        last_delta = delta;
         const T newton = tau - delta;
         if (newton > lo && newton < hi) next = newton;
       }
       if (!(hi - lo > 2 * eps * tau)) return finish(tau, s, rise);
-      s += integral(tau, next);
+      const T step = abs(T(next - tau));
+      if (step <= (b - a) / 1000) s += short_integral(tau, next);
+      else if (step < abs(T(next - a))) s += integral(tau, next);
+      else s = sa + integral(a, next);
       tau = next;
     }
     return fail(errc::no_convergence, "height crossing did not converge, at tau =", tau);
@@ -283,8 +474,9 @@ class hodograph_path {
   }
 
  private:
-  T c_, g_, v0_, theta0_;
+  T g_, v0_, theta0_;
   T e0_{};      // e^sigma0 = sec(theta0) + tan(theta0)
+  T ie0_{};     // e^-sigma0
   T sigma0_{};  // asinh(tan(theta0))
   T kappa_{};   // c v0^2 / g
   T kc_{};      // kappa cos^2(theta0) = c u0^2 / g
