@@ -434,16 +434,33 @@ class integrated_flight {
         const auto climb = [&](const T& s) { return T(up_.dot(dense(s).velocity)); };
         const result<T> ta = root(climb, t, t1, T(up_.dot(y.velocity)), climb(t1));
         if (!ta) return unexpected<error>(ta.error());
-        const T ha = *ta - t;
+        T t_apex = *ta;
+        T ha = t_apex - t;
         if (ha > T(0)) {
           (void)detail::dp5_step(f, y, fy, ha, y1, k, rtol_, atol_);
+          // Where |v| v has a kink inside the step (a vertical throw turning over), the
+          // dense output misplaces the apex; Newton steps on the vertical velocity at the
+          // end of the retaken step, v_up' = up . a, put it back to within the tolerance.
+          using std::abs;
+          using std::sqrt;
+          const T slack = atol_ + rtol_ * T(sqrt(T(y0_.velocity.squaredNorm())));
+          for (int i = 0; i < 4; ++i) {
+            const T miss = up_.dot(y1.velocity);
+            const T slope = up_.dot(k.k7.velocity);
+            if (!(abs(miss) > slack) || !(slope < T(0))) break;
+            const T next = t_apex - miss / slope;
+            if (!(next > t) || !(next < t + 2 * h)) break;
+            t_apex = next;
+            ha = t_apex - t;
+            (void)detail::dp5_step(f, y, fy, ha, y1, k, rtol_, atol_);
+          }
         } else {
           y1 = y;
           k.k7 = fy;
         }
-        const adaptive_piece p{t, *ta, y, y1, k, tag::rising, true};
+        const adaptive_piece p{t, t_apex, y, y1, k, tag::rising, true};
         if (visit(p)) return {};
-        t = *ta;
+        t = t_apex;
         before_apex = false;
       } else {
         const adaptive_piece p{t, t1, y, y1, k, current_tag(before_apex), false};
