@@ -193,7 +193,11 @@ class linear_flight {
     pull_ = air.gravity + k_ * air.wind;
     has_side_wind_ = k_ > T(0) && wind_h_.squaredNorm() > T(0);
     falls_ = g_ > T(0) && (k_ == T(0) || G_ > T(0));
-    if (falls_) vertical_constants();
+    if (falls_) {
+      inv_G_ = T(1) / G_;
+      inv_k_ = k_ > T(0) ? T(T(1) / k_) : T(0);
+      vertical_constants();
+    }
   }
 
   // The apex of the vertical motion v(t) = -G/k + (v + G/k) e^-kt (v = climb0()): at
@@ -307,7 +311,8 @@ class linear_flight {
     using std::exp;
     using std::sqrt;
     const T D = top_ - dh;
-    const T fall = sqrt(T(2 * D / G_));
+    const T DG = D * inv_G_;  // D/G; reciprocals kept from the constructor: no division here
+    const T fall = sqrt(T(2 * DG));
     const T p = branch == side::falling ? T(k_ * fall) : T(-k_ * fall);
     T tail;
     if (p <= T(1) / T(2) && p >= T(-1) / T(2)) {
@@ -319,9 +324,9 @@ class linear_flight {
       const W z = W(-exp(T(-p * p / 2 - 1)));
       const W w = branch == side::falling ? W(boost::math::lambert_w0(z, detail::no_throw_policy{}))
                                           : W(boost::math::lambert_wm1(z, detail::no_throw_policy{}));
-      tail = (T(1) + T(w)) / k_;
+      tail = (T(1) + T(w)) * inv_k_;
     }
-    return T(t_turn_ + k_ * D / G_ + tail);
+    return T(t_turn_ + k_ * DG + tail);
   }
 
   // A downward shot (v < 0) crossing dh < 0. Vacuum: the root 2 dh/(v - sqrt(v^2 - 2 g dh)),
@@ -566,6 +571,8 @@ class linear_flight {
   T x_{};           // k v / G
   T t_turn_{};      // time of the (possibly virtual) apex
   T top_{};         // rise of the (possibly virtual) apex above the launch
+  T inv_G_{};       // 1/G (when the body falls)
+  T inv_k_{};       // 1/k, 0 in vacuum
 };
 
 }  // namespace lob
