@@ -1,10 +1,14 @@
 // Range of a quadratic-drag flight (a ball of terminal speed 33 m/s, launched at 40 m/s and
 // 35 degrees from the ground, still air) by lob's paths and by what a user would use
 // instead, side by side in one run:
-//   lob_hodograph            lob::fly() with default options (the hodograph quadrature)
+//   lob_fly_hodograph        lob::fly() with default options (the hodograph fast path, through
+//                            fly() and the 3-D state; engineer "hodograph"s lob_hodograph row
+//                            times the quadrature alone)
 //   lob_adaptive_<tol>       lob's Dormand–Prince 5(4) path, rtol = atol = tol
 //   odeint_dopri5_<tol>      Boost.Odeint runge_kutta_dopri5 with dense output at the same
 //                            tolerances, the landing located on its dense output by TOMS 748
+//   odeint_dopri5_vector_1e-9  the same with std::vector<double> state, as odeint's own
+//                            tutorials write it (context; the std::array peer is the fair one)
 //   lob_semi_implicit_euler_60hz   lob's fixed-step mode at 1/60 s (landing on the Hermite
 //                            interpolant between steps)
 //   semi_implicit_euler_60hz the loop as game engines step it at 1/60 s, the landing
@@ -20,6 +24,7 @@
 #include <array>
 #include <cmath>
 #include <cstdint>
+#include <vector>
 
 #include <boost/math/tools/toms748_solve.hpp>
 #include <boost/numeric/odeint.hpp>
@@ -84,10 +89,11 @@ void run_lob(benchmark::State& state, const lob::flight_options<double>& o) {
 // negative, then the landing located on its dense output (calc_state) with TOMS 748.
 using odeint_state = std::array<double, 6>;
 
+template <class State = odeint_state>
 double odeint_range(const ball& b, double tol) {
   namespace odeint = boost::numeric::odeint;
   const double g = lob::standard_gravity<double>();
-  const auto rhs = [&](const odeint_state& x, odeint_state& dx, double) {
+  const auto rhs = [&](const State& x, State& dx, double) {
     const double s = std::sqrt(x[3] * x[3] + x[4] * x[4] + x[5] * x[5]);
     dx[0] = x[3];
     dx[1] = x[4];
@@ -96,12 +102,12 @@ double odeint_range(const ball& b, double tol) {
     dx[4] = -b.c * s * x[4];
     dx[5] = -b.c * s * x[5] - g;
   };
-  auto stepper = odeint::make_dense_output(tol, tol, odeint::runge_kutta_dopri5<odeint_state>());
-  stepper.initialize(odeint_state{0, 0, 0, b.vx, 0, b.vz}, 0.0, 0.01);
+  auto stepper = odeint::make_dense_output(tol, tol, odeint::runge_kutta_dopri5<State>());
+  stepper.initialize(State{0, 0, 0, b.vx, 0, b.vz}, 0.0, 0.01);
   for (int i = 0; i < 100000; ++i) {
     stepper.do_step(rhs);
     if (stepper.current_state()[2] <= 0 && stepper.current_time() > 0) {
-      odeint_state x;
+      State x = stepper.current_state();
       const auto height = [&](double t) {
         stepper.calc_state(t, x);
         return x[2];
@@ -116,13 +122,14 @@ double odeint_range(const ball& b, double tol) {
   return NAN;
 }
 
+template <class State>
 void run_odeint(benchmark::State& state, double tol) {
   double r = 0;
   for (auto _ : state) {
-    r = odeint_range(read_inputs(), tol);
+    r = odeint_range<State>(read_inputs(), tol);
     benchmark::DoNotOptimize(r);
   }
-  state.counters["max_rel_err"] = rel_err(odeint_range(read_inputs(), tol));
+  state.counters["max_rel_err"] = rel_err(odeint_range<State>(read_inputs(), tol));
 }
 
 // Semi-implicit Euler as an engine steps it: velocity first, then position, at 60 Hz;
@@ -146,7 +153,8 @@ double engine_range(const ball& b) {
 
 void BM_lob_hodograph(benchmark::State& state) { run_lob(state, lob::flight_options<double>{}); }
 void BM_lob_adaptive(benchmark::State& state, double tol) { run_lob(state, adaptive(tol)); }
-void BM_odeint(benchmark::State& state, double tol) { run_odeint(state, tol); }
+void BM_odeint(benchmark::State& state, double tol) { run_odeint<odeint_state>(state, tol); }
+void BM_odeint_vector(benchmark::State& state, double tol) { run_odeint<std::vector<double>>(state, tol); }
 void BM_lob_euler(benchmark::State& state) {
   lob::flight_options<double> o;
   o.method = lob::stepper::semi_implicit_euler;
@@ -168,13 +176,14 @@ void BM_engine(benchmark::State& state) {
   state.counters["max_rel_err"] = rel_err(engine_range(read_inputs()));
 }
 
-BENCHMARK(BM_lob_hodograph)->Name("quadratic_range_double/lob_hodograph");
+BENCHMARK(BM_lob_hodograph)->Name("quadratic_range_double/lob_fly_hodograph");
 BENCHMARK_CAPTURE(BM_lob_adaptive, 6, 1e-6)->Name("quadratic_range_double/lob_adaptive_1e-6");
 BENCHMARK_CAPTURE(BM_lob_adaptive, 9, 1e-9)->Name("quadratic_range_double/lob_adaptive_1e-9");
 BENCHMARK_CAPTURE(BM_lob_adaptive, 12, 1e-12)->Name("quadratic_range_double/lob_adaptive_1e-12");
 BENCHMARK_CAPTURE(BM_odeint, 6, 1e-6)->Name("quadratic_range_double/odeint_dopri5_1e-6");
 BENCHMARK_CAPTURE(BM_odeint, 9, 1e-9)->Name("quadratic_range_double/odeint_dopri5_1e-9");
 BENCHMARK_CAPTURE(BM_odeint, 12, 1e-12)->Name("quadratic_range_double/odeint_dopri5_1e-12");
+BENCHMARK_CAPTURE(BM_odeint_vector, 9, 1e-9)->Name("quadratic_range_double/odeint_dopri5_vector_1e-9");
 BENCHMARK(BM_lob_euler)->Name("quadratic_range_double/lob_semi_implicit_euler_60hz");
 BENCHMARK(BM_lob_rk4)->Name("quadratic_range_double/lob_rk4_60hz");
 BENCHMARK(BM_engine)->Name("quadratic_range_double/semi_implicit_euler_60hz");

@@ -448,8 +448,18 @@ class integrated_flight {
             const T miss = up_.dot(y1.velocity);
             const T slope = up_.dot(k.k7.velocity);
             if (!(abs(miss) > slack) || !(slope < T(0))) break;
-            const T next = t_apex - miss / slope;
+            const T dt = -miss / slope;
+            const T next = t_apex + dt;
             if (!(next > t) || !(next < t + 2 * h)) break;
+            if (abs(dt) < ha / 100) {
+              // A small move: a Taylor step from the end of the retaken step (its errors
+              // are of order dt^2 |a'| and dt^3 |a'|, far below the tolerance here).
+              y1.position += dt * y1.velocity + (dt * dt / 2) * k.k7.velocity;
+              y1.velocity += dt * k.k7.velocity;
+              k.k7 = detail::derivative(f, y1);
+              t_apex = next;
+              break;
+            }
             t_apex = next;
             ha = t_apex - t;
             (void)detail::dp5_step(f, y, fy, ha, y1, k, rtol_, atol_);
