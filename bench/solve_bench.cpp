@@ -225,21 +225,31 @@ double reference_best_range(const M& model, double landing_h) {
 
 // ---- benchmarks -----------------------------------------------------------------------
 
+// lob's integrated flights at the peer's tolerance (1e-10), so that accuracy compares
+// like with like; closed forms ignore it.
+lob::solve_options<double> lob_options() {
+  lob::solve_options<double> o;
+  o.flight.relative_tolerance = 1e-10;
+  o.flight.absolute_tolerance = 1e-10;
+  return o;
+}
+
 template <class M>
 void aim_lob(benchmark::State& state, M model) {
   const lob::medium<double> air;
+  const lob::solve_options<double> opts = lob_options();
   const target_set& set = targets();
   std::size_t i = 0;
   int failures = 0;
   for (auto _ : state) {
-    const auto s = lob::aim(model, air, lob::aim_request<double>{vec::Zero(), set.targets[i], aim_speed});
+    const auto s = lob::aim(model, air, lob::aim_request<double>{vec::Zero(), set.targets[i], aim_speed}, opts);
     if (!s) ++failures;
     benchmark::DoNotOptimize(s);
     i = (i + 1) % problem_count;
   }
   double worst = 0;
   for (const vec& t : set.targets) {
-    const auto s = lob::aim(model, air, lob::aim_request<double>{vec::Zero(), t, aim_speed});
+    const auto s = lob::aim(model, air, lob::aim_request<double>{vec::Zero(), t, aim_speed}, opts);
     if (!s || s->count() != 2) {
       worst = INFINITY;
       continue;
@@ -274,16 +284,19 @@ constexpr std::array<double, 4> landing_heights{0.0, -12.0, 5.0, -2.5};
 template <class M>
 void farthest_lob(benchmark::State& state, M model) {
   const lob::medium<double> air;
+  const lob::solve_options<double> opts = lob_options();
   std::size_t i = 0;
   for (auto _ : state) {
     const auto s = lob::farthest_elevation(model, air,
-                                           lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, landing_heights[i]});
+                                           lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, landing_heights[i]},
+                                           opts);
     benchmark::DoNotOptimize(s);
     i = (i + 1) % landing_heights.size();
   }
   double worst = 0;
   for (const double h : landing_heights) {
-    const auto s = lob::farthest_elevation(model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, h});
+    const auto s =
+        lob::farthest_elevation(model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, h}, opts);
     const double best = reference_best_range(model, h);
     worst = std::max(worst, s ? std::abs(true_range(model, s->elevation, h) - best) / best : INFINITY);
   }
