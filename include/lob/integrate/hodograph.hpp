@@ -124,13 +124,15 @@ template <Real T>
 [[nodiscard]] T sinh_small(const T& x) {
   const T x2 = x * x;
   if constexpr (std::is_floating_point_v<T>) {
-    T p = T(1) / T(51090942171709440000.0L);  // 1/21!
-    constexpr long double inv[] = {1.0L / 121645100408832000.0L, 1.0L / 355687428096000.0L,
-                                   1.0L / 1307674368000.0L,      1.0L / 6227020800.0L,
-                                   1.0L / 39916800.0L,           1.0L / 362880.0L,
-                                   1.0L / 5040.0L,               1.0L / 120.0L,
-                                   1.0L / 6.0L,                  1.0L};
-    for (long double c : inv) p = p * x2 + T(c);
+    // 1/(2k+1)! for k = 10 down to 0, rounded to T at compile time
+    constexpr T inv[] = {T(1.0L / 51090942171709440000.0L), T(1.0L / 121645100408832000.0L),
+                         T(1.0L / 355687428096000.0L),      T(1.0L / 1307674368000.0L),
+                         T(1.0L / 6227020800.0L),           T(1.0L / 39916800.0L),
+                         T(1.0L / 362880.0L),               T(1.0L / 5040.0L),
+                         T(1.0L / 120.0L),                  T(1.0L / 6.0L),
+                         T(1)};
+    T p = inv[0];
+    for (unsigned k = 1; k < sizeof inv / sizeof inv[0]; ++k) p = p * x2 + inv[k];
     return p * x;
   } else {
     using std::abs;
@@ -371,20 +373,29 @@ class hodograph_path {
     const auto& x = gauss::abscissa();
     const auto& w = gauss::weights();
     const legendre_table<T, points> lt = legendre_constants<T, points>();
-    std::array<T, points> coef;
-    for (unsigned k = 0; k < points; ++k) coef[k] = T(0);
+    // Even and odd parts of the node pairs, weighted (P_k(-x) = (-1)^k P_k(x)); the
+    // recurrence runs over k outside and the nodes inside, so that the nodes pipeline.
+    std::array<T, half_points> even;
+    std::array<T, half_points> odd;
+    std::array<T, half_points> p_prev;
+    std::array<T, half_points> p;
     for (unsigned i = 0; i < half_points; ++i) {
       const bool centre = i == 0 && (points & 1u);
-      // even and odd parts of the node pair, weighted: P_k(-x) = (-1)^k P_k(x)
-      const T even = centre ? T(w[i] * nodes.plus[i]) : T(w[i] * T(nodes.plus[i] + nodes.minus[i]));
-      const T odd = centre ? T(0) : T(w[i] * T(nodes.plus[i] - nodes.minus[i]));
-      T p_prev(0);
-      T p(1);
-      for (unsigned k = 0; k < points; ++k) {
-        coef[k] += ((k & 1u) ? odd : even) * p;
-        const T p_next = lt.alpha[k] * x[i] * p - lt.beta[k] * p_prev;
-        p_prev = p;
-        p = p_next;
+      even[i] = centre ? T(w[i] * nodes.plus[i]) : T(w[i] * T(nodes.plus[i] + nodes.minus[i]));
+      odd[i] = centre ? T(0) : T(w[i] * T(nodes.plus[i] - nodes.minus[i]));
+      p_prev[i] = T(0);
+      p[i] = T(1);
+    }
+    std::array<T, points> coef;
+    for (unsigned k = 0; k < points; ++k) {
+      const std::array<T, half_points>& part = (k & 1u) ? odd : even;
+      T sum(0);
+      for (unsigned i = 0; i < half_points; ++i) sum += part[i] * p[i];
+      coef[k] = sum;
+      for (unsigned i = 0; i < half_points; ++i) {
+        const T next = lt.alpha[k] * x[i] * p[i] - lt.beta[k] * p_prev[i];
+        p_prev[i] = p[i];
+        p[i] = next;
       }
     }
     const T scale = (b - a) / 2 / g_;
@@ -575,8 +586,10 @@ template <Real T>
 /// The apex of a flight under a = g - c |v| v in still air: the highest point at or after
 /// launch (the launch point itself for a level or downward launch; speed 0 and inclination 0
 /// for an exactly vertical one). c [1/m] > 0, g [m/s^2] > 0, v0 [m/s] > 0, theta0 [rad] in
-/// [-pi/2, pi/2]. Accuracy: a few units in 1e-15 relative in double (tested to 1e-13 against
-/// an independent mpmath integration of the equations of motion).
+/// [-pi/2, pi/2]. Accuracy, measured against an independent mpmath integration of the
+/// equations of motion (tests/data/hodograph_reference.csv, 259 rows, kappa = c v0^2/g from
+/// 1e-6 to 1e3, elevations -80..90 deg): at most 2e-15 relative in double, 3e-18 in long
+/// double, 9e-7 in float, 5e-25 in 50 digits (the table's own limit).
 /// Errors: `invalid_argument` for bad inputs; `no_convergence` if a loop hits its cap.
 template <Real T>
 [[nodiscard]] result<hodograph_point<T>> hodograph_apex(const T& c, const T& g, const T& v0, const T& theta0) {
