@@ -374,8 +374,9 @@ template <Real T>
 // target's height; the miss is taken as unimodal in the elevation on
 // [line of sight, pi/2). First try: the vacuum solutions and the elevation midway between
 // them (which bisects the line of sight and the vertical) give brackets in 3 flights when
-// the midway elevation clears the target, as it does for moderate drag; the roots are
-// then found by TOMS 748. Otherwise Boost.Math's Brent finds the peak of the miss
+// the midway elevation clears the target, as it does for moderate drag; a parabola in
+// tan(theta) through those 3 gives first guesses and bracketed secant steps
+// (secant_in_bracket) the roots. Otherwise Boost.Math's Brent finds the peak of the miss
 // (coarsely first, fully when the peak is near zero) and TOMS 748 the roots on each side.
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<plane_roots<T>> plane_solve(const shooter<M>& sh, const T& azimuth, const T& speed,

@@ -48,7 +48,7 @@ template <Real T>
     const T eps = epsilon<T>();
     T power = s * s / T(2);  // s^n / n!, n = 2
     T sum = power;
-    for (int n = 3; n < 200; ++n) {  // terms fall faster than 2^-n n^-1 ... at |s| < 1/2
+    for (int n = 3; n < 200; ++n) {  // at |s| < 1/2 the terms fall faster than 2^-n
       power *= s / T(n);
       const T term = T(n - 1) * power;
       sum += term;
