@@ -5,6 +5,7 @@
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
+#include <array>
 #include <cmath>
 #include <limits>
 #include <random>
@@ -137,4 +138,25 @@ TEST_CASE_TEMPLATE("the apex height equals the height of the apex state", T, flo
   const lob::linear_flight<double> down = make_flight<double>(0.1, {10.0, 0.0, -5.0}, lob::vec3<double>::Zero(),
                                                               {0.0, 0.0, 7.0});
   CHECK(*down.max_height() == 7.0);
+}
+
+TEST_CASE("sampling an exact flight writes the states at() gives, end points included") {
+  const auto flight = lob::fly(lob::linear_drag<double>{0.3}, lob::medium<double>{},
+                               lob::shot<double>{lob::vec3<double>::Zero(), lob::launch_velocity(18.0, lob::deg(50.0))});
+  REQUIRE(flight);
+  std::array<lob::state<double>, 7> points{};
+  const auto written = flight->sample(points, 2.4);
+  REQUIRE(written);
+  CHECK(*written == points.size());
+  CHECK(points.front().time == 0.0);
+  CHECK(points.back().time == 2.4);
+  for (const auto& p : points) {
+    const auto direct = flight->at(p.time);
+    REQUIRE(direct);
+    CHECK(p.position == direct->position);  // the same closed form, bit for bit
+    CHECK(p.velocity == direct->velocity);
+  }
+  const auto bad = flight->sample(points, -1.0);
+  REQUIRE_FALSE(bad);
+  CHECK(bad.error() == lob::errc::invalid_argument);
 }

@@ -24,8 +24,10 @@
 /// downward_crossing). Measured against 50-digit references (tests/exact): double within
 /// 2e-15 relative in time, range, apex height and landing speed; float 1.1e-6.
 
+#include <cstddef>
 #include <cstdint>
 #include <limits>
+#include <span>
 #include <type_traits>
 #include <utility>
 
@@ -170,6 +172,22 @@ class linear_flight {
     const result<T> t = distance_time_in_wind(distance, wind_speed);
     if (!t) return unexpected<error>(t.error());
     return checked(state_at(*t));
+  }
+
+  /// Writes `out.size()` evenly spaced states from launch to `t_end` [s] (both included)
+  /// into the caller's span; returns the number written. No allocation.
+  [[nodiscard]] result<std::size_t> sample(std::span<state<T>> out, const T& t_end) const {
+    if (!is_finite(t_end) || t_end < T(0))
+      return fail(errc::invalid_argument, "sample end time must be finite and >= 0", t_end);
+    const std::size_t n = out.size();
+    for (std::size_t i = 0; i < n; ++i) {
+      const T t = n == 1 || i + 1 == n ? (n == 1 ? T(0) : t_end)
+                                       : T(t_end * T(static_cast<long long>(i)) / T(static_cast<long long>(n - 1)));
+      const result<state<T>> s = checked(state_at(t));
+      if (!s) return unexpected<error>(s.error());
+      out[i] = *s;
+    }
+    return n;
   }
 
   [[nodiscard]] const shot<T>& launch() const noexcept { return launch_; }
