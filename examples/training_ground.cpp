@@ -111,7 +111,7 @@ int main(int argc, char** argv) {
                 lob::to_degrees(shots->lofted->elevation), shots->lofted->time_of_flight);
   }
   std::printf("Keep people outside %.1f m of the machine while it runs (the farthest landing in vacuum,\n"
-              "an upper bound for any drag); follow your site's own safety rules.\n", far[0].range);
+              "wider than any of the drag models reaches in still air); follow your site's own safety rules.\n", far[0].range);
 
   const char* picture = argc > 1 ? argv[1] : "training_ground.svg";
   std::FILE* svg = std::fopen(picture, "w");

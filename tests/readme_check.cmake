@@ -1,0 +1,15 @@
+# Fails when the README's C++ usage block and examples/readme_usage.cpp differ, so that
+# the example users copy is the one CI compiles and runs. -DROOT=<source dir>.
+file(READ "${ROOT}/README.md" readme)
+string(FIND "${readme}" "```cpp\n" start)
+if(start EQUAL -1)
+  message(FATAL_ERROR "README.md has no ```cpp block")
+endif()
+math(EXPR start "${start} + 7")
+string(SUBSTRING "${readme}" ${start} -1 rest)
+string(FIND "${rest}" "```" stop)
+string(SUBSTRING "${rest}" 0 ${stop} block)
+file(READ "${ROOT}/examples/readme_usage.cpp" example)
+if(NOT block STREQUAL example)
+  message(FATAL_ERROR "README.md's usage example differs from examples/readme_usage.cpp")
+endif()
