@@ -4,12 +4,14 @@
 /// a = -(k + c |v_air|) v_air, the usual way to span the Stokes (slow, small) and Newton
 /// (fast, large) regimes with one model. Integrated by lob::fly().
 
+#include <limits>
+
 #include <boost/math/constants/constants.hpp>
 
 #include "lob/core/result.hpp"
 #include "lob/core/units.hpp"
-#include <limits>
-
+#include "lob/models/linear_drag.hpp"
+#include "lob/models/quadratic_drag.hpp"
 #include "lob/models/traits.hpp"
 
 namespace lob {
@@ -31,13 +33,9 @@ struct linear_quadratic_drag {
 
   /// `invalid_argument` unless both parts are finite and >= 0.
   [[nodiscard]] status check() const {
-    if (!is_finite(rate)) return fail(errc::invalid_argument, "linear drag rate must be finite", rate);
-    if (rate < T(0)) return fail(errc::invalid_argument, "linear drag rate must be >= 0", rate);
-    if (!is_finite(coefficient))
-      return fail(errc::invalid_argument, "quadratic drag coefficient must be finite", coefficient);
-    if (coefficient < T(0))
-      return fail(errc::invalid_argument, "quadratic drag coefficient must be >= 0", coefficient);
-    return {};
+    // Each part is checked by its own model, so the messages read the same everywhere.
+    if (const status linear = linear_drag<T>{rate}.check(); !linear) return linear;
+    return quadratic_drag<T>{coefficient}.check();
   }
 
   /// Terminal speed in still air [m/s] under gravity `g`: the positive root of
