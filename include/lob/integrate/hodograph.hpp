@@ -106,6 +106,9 @@ struct hodograph_sums {
     return *this;
   }
   friend hodograph_sums operator+(hodograph_sums a, const hodograph_sums& b) { return a += b; }
+  friend hodograph_sums operator-(const hodograph_sums& a, const hodograph_sums& b) {
+    return {T(a.time - b.time), T(a.distance - b.distance), T(a.rise - b.rise)};
+  }
   friend hodograph_sums operator*(const hodograph_sums& a, const T& w) {
     return {T(a.time * w), T(a.distance * w), T(a.rise * w)};
   }
@@ -213,16 +216,13 @@ class hodograph_path {
   struct local {
     T sinh_sigma;
     T cosh_sigma;
+    T q;  // 1 + D = (u0 / u)^2
     T u;  // [m/s]
   };
 
-  // One exponential per node: e^tau (expm1 near 0, where sinh(tau) must keep its digits);
-  // e^sigma = e^sigma0 / e^tau keeps its relative accuracy for any sigma; sinh(sigma)
-  // near the apex (|sigma| < 1/2) from its series, where (e - 1/e)/2 would cancel.
+  // One exponential per node: e^tau (expm1 near 0, where sinh(tau) must keep its digits).
   [[nodiscard]] local at(const T& tau) const {
-    using std::abs;
     using std::exp;
-    using std::sqrt;
     T et;
     T emt;
     if (tau < T(1) / T(2)) {
@@ -232,8 +232,16 @@ class hodograph_path {
       et = exp(tau);
       emt = et - T(1);
     }
-    const T es = e0_ / et;   // e^sigma
-    const T iet = es * ie0_;  // e^-tau
+    return with_speed(shape(tau, et, emt, T(T(1) / et)));
+  }
+
+  // The same from e^tau, e^tau - 1 and e^-tau: e^sigma = e^sigma0 e^-tau keeps its
+  // relative accuracy for any sigma; sinh(sigma) near the apex (|sigma| < 1/2) comes from
+  // its series, where (e - 1/e)/2 would cancel.
+  // Everything but u (see with_speed).
+  [[nodiscard]] local shape(const T& tau, const T& et, const T& emt, const T& iet) const {
+    using std::abs;
+    const T es = e0_ * iet;   // e^sigma
     const T ies = et * ie0_;  // e^-sigma
     const T sinh_tau = (emt + emt * iet) / 2;
     const T sigma = sigma0_ - tau;
@@ -241,26 +249,25 @@ class hodograph_path {
     p.cosh_sigma = (es + ies) / 2;
     p.sinh_sigma = abs(sigma) < T(1) / T(2) ? sinh_small(sigma) : T((es - ies) / 2);
     const T cosh_sum = (e0_ * es + ies * ie0_) / 2;  // cosh(sigma0 + sigma)
-    const T q = T(1) + kc_ * (cosh_sum * sinh_tau + tau);
-    p.u = u0_ / sqrt(q);
+    p.q = T(1) + kc_ * (cosh_sum * sinh_tau + tau);
+    p.u = T(0);
+    return p;
+  }
+  [[nodiscard]] local with_speed(local p) const {
+    using std::sqrt;
+    p.u = u0_ / sqrt(p.q);
     return p;
   }
 
   // Rates of (g t, g x, g y) with respect to tau.
-  [[nodiscard]] hodograph_sums<T> rates(const T& tau) const {
-    const local p = at(tau);
+  [[nodiscard]] static hodograph_sums<T> rates(const local& p) {
     const T v = p.u * p.cosh_sigma;
     const T uv = p.u * v;
     return {v, uv, T(uv * p.sinh_sigma)};
   }
+  [[nodiscard]] hodograph_sums<T> rates(const T& tau) const { return rates(at(tau)); }
 
-  // dy/dtau [m], the closed-form derivative the Newton iteration uses.
-  [[nodiscard]] T rise_rate(const T& tau) const {
-    const local p = at(tau);
-    return T(p.u * p.u * p.cosh_sigma * p.sinh_sigma / g_);
-  }
-
-  // The rise rates g dy/dtau at the Gauss nodes of the last panel, for its interpolant:
+  // The rates g dy/dtau (or g dx/dtau) at the Gauss nodes of the last panel, for its interpolant:
   // plus[i] at z = +x_i, minus[i] at z = -x_i (x_i Boost's non-negative abscissae).
   struct node_rates {
     std::array<T, half_points> plus;
@@ -268,26 +275,46 @@ class hodograph_path {
   };
 
   // (t, x, y) gained from tau = a to tau = b, by the N-point Gauss–Legendre rule (Boost's
-  // tabulated nodes and weights); the rise rates at the nodes are kept in `keep`.
-  [[nodiscard]] hodograph_sums<T> integral(const T& a, const T& b, node_rates* keep = nullptr) const {
+  // tabulated nodes and weights); the rates of quantity `q` (rise or distance) at the
+  // nodes are kept in `keep`. Away from the launch the nodes come in pairs mid +- h, whose exponentials are
+  // e^mid e^+-h: one expm1 per pair instead of one exponential per node. e^tau - 1 is
+  // then a sum of non-negative terms at mid + h and a difference at mid - h, which loses
+  // digits as mid - h nears 0, so a panel that starts closer to 0 than its own width
+  // evaluates every node alone.
+  [[nodiscard]] hodograph_sums<T> integral(const T& a, const T& b, node_rates* keep = nullptr,
+                                           T hodograph_sums<T>::*q = &hodograph_sums<T>::rise) const {
     const T mid = (a + b) / 2;
     const T half = (b - a) / 2;
     const auto& x = gauss::abscissa();
     const auto& w = gauss::weights();
+    const bool paired = a >= b - a;
+    const T em = paired ? T(detail::expm1(mid)) : T(0);  // e^mid - 1
+    const T e_mid = T(1) + em;
+    const T ie_mid = T(1) / e_mid;
     hodograph_sums<T> s(T(0));
     for (unsigned i = 0; i < half_points; ++i) {
       if (i == 0 && (points & 1u)) {
-        const hodograph_sums<T> f = rates(mid);
+        const hodograph_sums<T> f = rates(paired ? with_speed(shape(mid, e_mid, em, ie_mid)) : at(mid));
         s += f * w[0];
-        if (keep) keep->plus[0] = keep->minus[0] = f.rise;
+        if (keep) keep->plus[0] = keep->minus[0] = f.*q;
         continue;
       }
-      const hodograph_sums<T> fp = rates(T(mid + half * x[i]));
-      const hodograph_sums<T> fm = rates(T(mid - half * x[i]));
+      const T hx = half * x[i];
+      hodograph_sums<T> fp;
+      hodograph_sums<T> fm;
+      if (paired) {
+        const T eh = detail::expm1(hx);  // e^h - 1
+        const T ieh = T(1) / (T(1) + eh);
+        fp = rates(with_speed(shape(T(mid + hx), T(e_mid * (T(1) + eh)), T(em + eh + em * eh), T(ie_mid * ieh))));
+        fm = rates(with_speed(shape(T(mid - hx), T(e_mid * ieh), T(T(em - eh) * ieh), T(ie_mid * (T(1) + eh)))));
+      } else {
+        fp = rates(T(mid + hx));
+        fm = rates(T(mid - hx));
+      }
       s += (fp + fm) * w[i];
       if (keep) {
-        keep->plus[i] = fp.rise;
-        keep->minus[i] = fm.rise;
+        keep->plus[i] = fp.*q;
+        keep->minus[i] = fm.*q;
       }
     }
     return s * T(half / g_);
@@ -344,31 +371,32 @@ class hodograph_path {
     return fail(errc::no_convergence, "ascent needs more quadrature panels than allowed, sigma0 =", sigma0_);
   }
 
-  // The point where the height `rise` is crossed, searched panel by panel from (a, s) in
-  // the direction `dir` (+1: ascent, heights increase; -1: descent), up to tau = end.
-  [[nodiscard]] result<hodograph_point<T>> search(T a, hodograph_sums<T> s, const T& rise, int dir,
-                                                  const T& end) const {
+  // The point where quantity `q` (rise or distance) reaches `level`, searched panel by
+  // panel from (a, s) in the direction `dir` (+1: q increases with tau, as the rise does
+  // on the ascent and the distance always; -1: the rise on the descent), up to tau = end.
+  [[nodiscard]] result<hodograph_point<T>> search(T a, hodograph_sums<T> s, const T& level, int dir, const T& end,
+                                                  T hodograph_sums<T>::*q = &hodograph_sums<T>::rise) const {
     node_rates nodes;
     for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
       T b = k == 0 ? next_break_merged(a) : next_break(a);
       if (b > end) b = end;
-      const hodograph_sums<T> sb = s + integral(a, b, &nodes);
-      if (T(dir) * T(sb.rise - rise) >= T(0)) return polish(a, s, b, sb, nodes, rise, dir);
+      const hodograph_sums<T> sb = s + integral(a, b, &nodes, q);
+      if (T(dir) * T(sb.*q - level) >= T(0)) return polish(a, s, b, sb, nodes, level, dir, q);
       if (b == end) break;
       a = b;
       s = sb;
     }
-    return fail(errc::no_convergence, "height crossing lies beyond the quadrature's reach, height", rise);
+    return fail(errc::no_convergence, "the crossing lies beyond the quadrature's reach, at", level);
   }
 
-  // The root of the panel's interpolant of y: y(z) = y_a + (half/g) int_-1^z p, with p
+  // The root of the panel's interpolant of q: q(z) = q_a + (half/g) int_-1^z p, with p
   // the Legendre series through the N node rates (its coefficients from the discrete
   // orthogonality of the Gauss nodes, its integral from int P_k = (P_k+1 - P_k-1)/(2k+1)),
   // solved by a safeguarded Newton iteration in z. Costs no evaluation of the integrand
-  // and is accurate to about the interpolation error of the panel, so that one or two
-  // true Newton steps finish the job.
-  [[nodiscard]] T interpolated_root(const T& a, const T& b, const T& ya, const T& yb, const node_rates& nodes,
-                                    const T& rise, int dir) const {
+  // and is accurate to about the interpolation error of the panel, so that one true
+  // Newton step finishes the job.
+  [[nodiscard]] T interpolated_root(const T& a, const T& b, const T& qa, const T& qb, const node_rates& nodes,
+                                    const T& level, int dir) const {
     using std::abs;
     const auto& x = gauss::abscissa();
     const auto& w = gauss::weights();
@@ -400,7 +428,7 @@ class hodograph_path {
     }
     const T scale = (b - a) / 2 / g_;
     for (unsigned k = 0; k < points; ++k) coef[k] *= scale / (lt.inv_odd[k] * 2);
-    // F(z) = dir (y(z) - rise) and F'(z), increasing from F(-1) < 0 to F(1) >= 0.
+    // F(z) = dir (q(z) - level) and F'(z), increasing from F(-1) < 0 to F(1) >= 0.
     const auto eval = [&](const T& z, T& slope) {
       T p_prev(1);
       T p(z);
@@ -414,11 +442,11 @@ class hodograph_path {
         p = p_next;
       }
       slope *= T(dir);
-      return T(T(dir) * T(ya + value - rise));
+      return T(T(dir) * T(qa + value - level));
     };
     T lo(-1);
     T hi(1);
-    T z = T(-1) + 2 * T((rise - ya) / (yb - ya));
+    T z = T(-1) + 2 * T((level - qa) / (qb - qa));
     if (!(z > lo && z < hi)) z = T(0);
     const T eps = epsilon<T>();
     for (int i = 0; i < 60; ++i) {
@@ -439,54 +467,78 @@ class hodograph_path {
     return T((a + b) / 2 + (b - a) / 2 * z);
   }
 
-  // Safeguarded Newton iteration on y(tau) = rise inside the panel [a, b], where
-  // dir * (y - rise) is < 0 at a and >= 0 at b, from the interpolated root. dy/dtau is
-  // known in closed form. Each step integrates from the panel start or, for a short
-  // step, from the previous iterate (with the short rule when it is very short), so
-  // that rounding does not pile up along a long detour.
+  // The sums at tau inside the panel [a, b] whose end sums are sa and sb, integrated from
+  // the nearer end; a piece at most 1/1000 of the panel long takes Boost's short rule.
+  [[nodiscard]] hodograph_sums<T> inside(const T& a, const hodograph_sums<T>& sa, const T& b,
+                                         const hodograph_sums<T>& sb, const T& tau) const {
+    const T sliver = (b - a) / 1000;
+    if (tau - a <= b - tau) return sa + (tau - a <= sliver ? short_integral(a, tau) : integral(a, tau));
+    return sb - (b - tau <= sliver ? short_integral(tau, b) : integral(tau, b));
+  }
+
+  // Safeguarded Newton iteration on q(tau) = level inside the panel [a, b], where
+  // dir * (q - level) is < 0 at a and >= 0 at b, from the interpolated root. dq/dtau is
+  // known in closed form. A step so small that the trapezoid rule is exact to rounding
+  // (below 1e-5 of the distance to either end of the panel, the scale on which the rates
+  // change: its error is ~ step^3) costs one evaluation and gives the rate at the new
+  // point for the next step; longer steps integrate from the nearer end of the panel, so
+  // that rounding does not pile up along a long detour. (A landing just after a tiny apex
+  // has a slope near zero, where a piled-up error in the rise would move the root.)
   [[nodiscard]] result<hodograph_point<T>> polish(const T& a, const hodograph_sums<T>& sa, const T& b,
                                                   const hodograph_sums<T>& sb, const node_rates& nodes,
-                                                  const T& rise, int dir) const {
+                                                  const T& level, int dir, T hodograph_sums<T>::*q) const {
     using std::abs;
+    using std::min;
     const T eps = epsilon<T>();
-    if (sb.rise == rise) return finish(b, sb, rise);
+    if (sb.*q == level) return finish(b, sb, rates(b), level, q);
     T lo = a;
     T hi = b;
-    T tau = interpolated_root(a, b, sa.rise, sb.rise, nodes, rise, dir);
+    T tau = interpolated_root(a, b, sa.*q, sb.*q, nodes, level, dir);
     if (!(tau > lo && tau < hi)) tau = (lo + hi) / 2;
-    hodograph_sums<T> s = sa + integral(a, tau);
+    hodograph_sums<T> s = inside(a, sa, b, sb, tau);
+    hodograph_sums<T> r = rates(tau);  // g d(t, x, y)/dtau at tau
     T last_delta = b - a;
     for (int i = 0; i < 100; ++i) {
-      const T f = T(dir) * T(s.rise - rise);  // increasing in tau on [lo, hi]
-      if (f == T(0)) return finish(tau, s, rise);
+      const T f = T(dir) * T(s.*q - level);  // increasing in tau on [lo, hi]
+      if (f == T(0)) return finish(tau, s, r, level, q);
       if (f < T(0)) lo = tau;
       else hi = tau;
-      const T slope = T(dir) * rise_rate(tau);
+      const T slope = T(dir) * T(r.*q / g_);
       T next = (lo + hi) / 2;
       if (slope > T(0)) {
         const T delta = f / slope;
         // Converged when the step is below rounding, or stops shrinking once it is tiny
-        // (rounding in y, not distance to the root, drives it).
-        if (abs(delta) <= 2 * eps * tau) return finish(tau, s, rise);
+        // (rounding in q, not distance to the root, drives it).
+        if (abs(delta) <= 2 * eps * abs(tau)) return finish(tau, s, r, level, q);
         if (abs(delta) <= eps * T(1024) * (b - a) && abs(delta) > abs(last_delta) / 4)
-          return finish(tau, s, rise);
+          return finish(tau, s, r, level, q);
         last_delta = delta;
         const T newton = tau - delta;
         if (newton > lo && newton < hi) next = newton;
       }
-      if (!(hi - lo > 2 * eps * tau)) return finish(tau, s, rise);
-      const T step = abs(T(next - tau));
-      if (step <= (b - a) / 1000) s += short_integral(tau, next);
-      else if (step < abs(T(next - a))) s += integral(tau, next);
-      else s = sa + integral(a, next);
+      if (!(hi - lo > 2 * eps * abs(tau))) return finish(tau, s, r, level, q);
+      const T step = next - tau;
+      if (abs(step) <= T(min(T(tau - a), T(b - tau)) / T(100000))) {
+        const hodograph_sums<T> r_next = rates(next);
+        s += (r + r_next) * T(step / (2 * g_));
+        r = r_next;
+      } else {
+        s = inside(a, sa, b, sb, next);
+        r = rates(next);
+      }
       tau = next;
     }
-    return fail(errc::no_convergence, "height crossing did not converge, at tau =", tau);
+    return fail(errc::no_convergence, "the crossing did not converge, at tau =", tau);
   }
 
-  [[nodiscard]] hodograph_point<T> finish(const T& tau, const hodograph_sums<T>& s, const T& rise) const {
-    hodograph_point<T> p = point(tau, s);
-    p.rise = rise;
+  // The point at tau from its sums and rates (speed v = g dt/dtau, tan of the inclination
+  // sinh(sigma) = dy/dx), with quantity q set to the level it was solved for.
+  [[nodiscard]] hodograph_point<T> finish(const T&, const hodograph_sums<T>& s, const hodograph_sums<T>& r,
+                                          const T& level, T hodograph_sums<T>::*q) const {
+    using std::atan;
+    hodograph_point<T> p{s.time, s.distance, s.rise, r.time, T(atan(T(r.rise / r.distance)))};
+    if (q == &hodograph_sums<T>::rise) p.rise = level;
+    else p.distance = level;
     return p;
   }
 
