@@ -16,6 +16,7 @@
 #include <vector>
 
 #include "lob/integrate/hodograph.hpp"
+#include "lob/lob.hpp"
 
 using mp50 = boost::multiprecision::cpp_bin_float_50;
 using lob::side;
@@ -446,4 +447,102 @@ TEST_CASE("a descent too deep for float is an error, not an overflow") {
   const lob::result<hodograph_point<double>> d = hodograph_crossing(0.5, 9.80665, 10.0, 0.5, -200.0, side::falling);
   REQUIRE(d.has_value());
   CHECK(d->speed == doctest::Approx(std::sqrt(9.80665 / 0.5)).epsilon(1e-12));
+}
+
+// The distance search (hodograph_at_distance) against the same mpmath reference: at the
+// reference's landing distance the flight must be at the landing height at the landing
+// time. The distance given is rounded to T, and near a steep descent time and height are
+// sensitive to it (dt = dx / u, dy = tan(phi) dx), so each bound carries that condition
+// factor on top of the method's tolerance.
+TEST_CASE_TEMPLATE("the point at a distance matches the mpmath reference", T, float, double, long double, mp50) {
+  using lob::detail::hodograph_at_distance;
+  const std::vector<reference_row> rows = reference();
+  REQUIRE(!rows.empty());
+  const T never = T(1000000);
+  double worst_time = 0, worst_rise = 0;
+  int checked = 0;
+  for (const reference_row& r : rows) {
+    const double th_d = std::strtod(r[col::theta].c_str(), nullptr);
+    const double phi = std::strtod(r[col::phi_land].c_str(), nullptr);
+    if (std::abs(th_d) > 1.5 || phi < -1.5) continue;  // (near-)vertical: the distance hardly moves
+    const T c = parse<T>(r[col::c]), g = parse<T>(r[col::g]), v = parse<T>(r[col::v0]);
+    const T th = parse<T>(r[col::theta]), hh = parse<T>(r[col::h]);
+    const T x = parse<T>(r[col::x_land]);
+    if (!(x > T(0))) continue;
+    const lob::result<hodograph_point<T>> p = hodograph_at_distance(c, g, v, th, x, never);
+    REQUIRE_MESSAGE(p.has_value(), r[col::theta], " ", r[col::c], " ", r[col::h]);
+    const double xd = std::strtod(r[col::x_land].c_str(), nullptr);
+    const double td = std::strtod(r[col::t_land].c_str(), nullptr);
+    const double u = std::strtod(r[col::v_land].c_str(), nullptr) * std::cos(phi);
+    const double length = std::fmax(xd, std::abs(std::strtod(r[col::y_apex].c_str(), nullptr)));
+    const double time_factor = 1 + xd / (u * td);
+    const double rise_factor = 1 + std::abs(std::tan(phi)) * xd / length;
+    const double et = rel_err(p->time, r[col::t_land]) / time_factor;
+    const double ey = static_cast<double>(T(abs(T(p->rise - hh)))) / length / rise_factor;
+    worst_time = std::max(worst_time, et);
+    worst_rise = std::max(worst_rise, ey);
+    CHECK_MESSAGE(et <= tolerance<T>::value, "time, theta ", r[col::theta], " c ", r[col::c], " err ", et);
+    CHECK_MESSAGE(ey <= tolerance<T>::value, "rise, theta ", r[col::theta], " c ", r[col::c], " err ", ey);
+    CHECK(p->distance == x);
+    ++checked;
+  }
+  CHECK(checked > 100);
+  MESSAGE("max conditioned rel err at a distance: time ", worst_time, ", height ", worst_rise, " (", checked,
+          " rows)");
+}
+
+TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float, double, long double, mp50) {
+  using lob::detail::hodograph_at_distance;
+  const T g = lob::standard_gravity<T>();
+  const T c = T(1) / T(10), v = T(30), th = lob::deg(T(45));
+  const auto code = [](const lob::result<hodograph_point<T>>& r) { return r ? lob::errc{} : r.error().code(); };
+  // Under quadratic drag the descent turns vertical and the horizontal distance tends to a
+  // finite limit: along the path length s the horizontal speed is u0 e^(-c s) (du/ds = -c u),
+  // so 200 m below the launch (over 20/c of path) less than e^-20 of it is left, and what
+  // remains to go is below u e^-20 / (c v) < 1e-7 m.
+  const lob::result<hodograph_point<T>> deep = hodograph_crossing(c, g, v, th, T(-200), side::falling);
+  REQUIRE(deep.has_value());
+  CHECK(code(hodograph_at_distance(c, g, v, th, T(deep->distance + 1), T(1000000))) == lob::errc::never_reaches);
+  // a distance that is reached, but only after max_time
+  const lob::result<hodograph_point<T>> far = hodograph_at_distance(c, g, v, th, T(10), T(1000000));
+  REQUIRE(far.has_value());
+  CHECK(code(hodograph_at_distance(c, g, v, th, T(10), T(far->time / 2))) == lob::errc::time_limit);
+  CHECK(code(hodograph_at_distance(c, g, v, pi_half<T>(), T(1), T(1000000))) == lob::errc::never_reaches);
+  CHECK(code(hodograph_at_distance(c, g, v, th, T(0), T(1000000))) == lob::errc::invalid_argument);
+  CHECK(code(hodograph_at_distance(c, g, v, th, T(-1), T(1000000))) == lob::errc::invalid_argument);
+}
+
+// Through fly(): the hodograph path's at_distance in 3-D (launch off the origin, any
+// azimuth) against lob's adaptive path at a tight tolerance (a different method: the
+// Dormand-Prince integration of the Cartesian equations).
+TEST_CASE_TEMPLATE("a flight's state at a distance is the same on the fast and the adaptive path", T, double,
+                   long double) {
+  const lob::quadratic_drag<T> m{.coefficient = T(1) / T(80)};
+  const lob::medium<T> air;
+  lob::flight_options<T> slow;
+  slow.use_fast_paths = false;
+  slow.relative_tolerance = T(1) / T(10000000000000LL);  // 1e-13
+  slow.absolute_tolerance = T(1) / T(10000000000000LL);
+  for (const double elevation : {-30.0, 5.0, 35.0, 70.0, 88.0}) {
+    lob::shot<T> s;
+    s.position = lob::vec3<T>(T(3), T(-4), T(12));
+    s.velocity = lob::launch_velocity(T(40), lob::deg(T(elevation)), lob::deg(T(25)));
+    const auto fast = lob::fly(m, air, s);
+    const auto ref = lob::fly(m, air, s, slow);
+    REQUIRE(fast);
+    REQUIRE(ref);
+    const lob::result<T> range = fast->range(T(0));
+    REQUIRE(range);
+    for (const T d : {T(*range / 3), T(*range), T(*range * 1.1)}) {
+      const auto a = fast->at_distance(d);
+      const auto b = ref->at_distance(d);
+      REQUIRE(a);
+      REQUIRE(b);
+      INFO("elevation ", elevation, " distance ", static_cast<double>(d));
+      const T scale = *range + T(12);
+      CHECK(static_cast<double>(T((a->position - b->position).norm() / scale)) <= 1e-11);
+      CHECK(static_cast<double>(T(abs(T(a->time / b->time - 1)))) <= 1e-11);
+      CHECK(static_cast<double>(T((a->velocity - b->velocity).norm() / b->velocity.norm())) <= 1e-11);
+    }
+  }
 }

@@ -690,4 +690,50 @@ template <Real T>
   return path.search(climbs ? path.sigma0() : T(0), top, rise, -1, path.tau_max());
 }
 
+/// Where a flight under a = g - c |v| v in still air first reaches the horizontal distance
+/// `distance` [m] > 0 from its launch point (the distance grows along the whole flight,
+/// so the search runs from the launch over apex and descent alike). Inputs as for
+/// `hodograph_apex`; `max_time` [s] bounds the search.
+/// Errors: `invalid_argument` for bad inputs; `never_reaches` for a vertical launch or a
+/// distance beyond the horizontal asymptote of the descent; `time_limit` when the distance
+/// is reached only after `max_time`; `no_convergence` if an iteration hits its cap.
+template <Real T>
+[[nodiscard]] result<hodograph_point<T>> hodograph_at_distance(const T& c, const T& g, const T& v0, const T& theta0,
+                                                               const T& distance, const T& max_time) {
+  if (const status ok = hodograph_check(c, g, v0, theta0); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(distance) || !(distance > T(0)))
+    return fail(errc::invalid_argument, "distance must be finite and > 0", distance);
+  if (hodograph_vertical(theta0))
+    return fail(errc::never_reaches, "a vertical shot never moves sideways, distance", distance);
+  using path_t = hodograph_path<T>;
+  const path_t path(c, g, v0, theta0);
+  typename path_t::node_rates nodes;
+  const auto q = &hodograph_sums<T>::distance;
+  hodograph_sums<T> s(T(0));
+  T a(0);
+  for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
+    T b = path.next_break(a);
+    if (b > path.tau_max()) b = path.tau_max();
+    const hodograph_sums<T> sb = s + path.integral(a, b, &nodes, q);
+    if (sb.distance >= distance) {
+      const result<hodograph_point<T>> p = path.polish(a, s, b, sb, nodes, distance, +1, q);
+      if (p && p->time > max_time) return fail(errc::time_limit, "the distance is reached after max_time, at t =", p->time);
+      return p;
+    }
+    if (sb.time > max_time) return fail(errc::time_limit, "the distance is not reached within max_time =", max_time);
+    // Deep in the descent (inclination below -84 degrees, sigma < -3) the distance gained
+    // per panel of width w shrinks like e^-w, so all that is left is about e^-w / (1 - e^-w)
+    // of the last gain (0.16 of it for w = 2); a gap of more than twice the last gain is
+    // beyond the asymptote.
+    const T gain = sb.distance - s.distance;
+    if (path.sigma0() - b < T(-3) && distance - sb.distance > 2 * gain)
+      return fail(errc::never_reaches, "the distance is beyond the horizontal asymptote of the descent, at",
+                  sb.distance);
+    if (b == path.tau_max()) break;
+    a = b;
+    s = sb;
+  }
+  return fail(errc::no_convergence, "the distance lies beyond the quadrature's reach", distance);
+}
+
 }  // namespace lob::detail

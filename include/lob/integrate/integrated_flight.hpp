@@ -43,7 +43,7 @@ namespace lob {
 /// cubic Hermite interpolant between steps.
 ///
 /// Models with `model_traits<M>::quadratic_fast_path` (quadratic drag) answer `apex()`,
-/// `crossing()`, `landing()` and `range()` in still air through the hodograph quadrature
+/// `crossing()`, `landing()`, `range()` and `at_distance()` in still air through the hodograph quadrature
 /// of integrate/hodograph.hpp when the adaptive method is chosen and
 /// `flight_options::use_fast_paths` is set.
 template <DragModel M>
@@ -187,11 +187,15 @@ class integrated_flight {
   /// The first state whose horizontal distance from the launch point reaches `distance`
   /// [m] (the flight continues below the landing plane). Errors: `invalid_argument` for a
   /// negative or non-finite distance; `time_limit` when it is not reached by max_time;
-  /// `step_limit`.
+  /// `step_limit`; on the hodograph path also `never_reaches` for a vertical shot or a
+  /// distance beyond the horizontal asymptote of the descent.
   [[nodiscard]] result<state<T>> at_distance(const T& distance) const {
     if (!is_finite(distance) || distance < T(0))
       return fail(errc::invalid_argument, "distance must be finite and >= 0", distance);
     if (distance == T(0)) return make_state(T(0), y0_);
+    if constexpr (model_traits<M>::quadratic_fast_path) {
+      if (fast_) return fast_at_distance(distance);
+    }
     result<state<T>> out = fail(errc::no_convergence, "distance was not reached");
     const status walked = walk([&](const auto& p) {
       const auto f = [&](const T& s) { return T(level_distance(p.at(s).position) - distance); };
@@ -575,6 +579,12 @@ class integrated_flight {
   }
   [[nodiscard]] result<state<T>> fast_crossing(const T& dh, side branch) const {
     const result<detail::hodograph_point<T>> p = detail::hodograph_crossing(c_, g_, v0_, theta0_, dh, branch);
+    if (!p) return unexpected<error>(p.error());
+    return from_hodograph(*p);
+  }
+  [[nodiscard]] result<state<T>> fast_at_distance(const T& distance) const {
+    const result<detail::hodograph_point<T>> p =
+        detail::hodograph_at_distance(c_, g_, v0_, theta0_, distance, T(options_.max_time));
     if (!p) return unexpected<error>(p.error());
     return from_hodograph(*p);
   }
