@@ -5,7 +5,9 @@
 /// output). Internal building blocks of `integrated_flight`; all state lives on the stack.
 
 #include <algorithm>
+#include <bit>
 #include <cmath>
+#include <cstdint>
 
 #include "lob/core/real.hpp"
 #include "lob/core/vec.hpp"
@@ -27,26 +29,6 @@ struct dp5_stages {
   phase<T> k1, k3, k4, k5, k6, k7;
 };
 
-// Scaled maximum norm of an error estimate (Hairer, Norsett & Wanner, "Solving Ordinary
-// Differential Equations I", 2nd ed. (1993), sec. II.4, with the max norm in place of
-// eq. 4.11's root mean square): each component is divided by
-// atol + rtol * max(|y0_i|, |y1_i|). The max norm lets no single component, such as the
-// short horizontal distance of a steep shot, take the whole error budget.
-template <Real T>
-[[nodiscard]] T scaled_max(const phase<T>& err, const phase<T>& y0, const phase<T>& y1, const T& rtol,
-                           const T& atol) {
-  using std::abs;
-  using std::max;
-  T worst(0);
-  for (int i = 0; i < 3; ++i) {
-    const T sp = atol + rtol * max(T(abs(y0.position[i])), T(abs(y1.position[i])));
-    const T sv = atol + rtol * max(T(abs(y0.velocity[i])), T(abs(y1.velocity[i])));
-    worst = max(worst, T(abs(err.position[i]) / sp));
-    worst = max(worst, T(abs(err.velocity[i]) / sv));
-  }
-  return worst;
-}
-
 /// The phase derivative (velocity, acceleration) for an acceleration that depends on the
 /// velocity only, as gravity plus drag does.
 template <Real T, class Accel>
@@ -64,46 +46,86 @@ template <Real T, class Accel>
 /// position, the stage positions are never needed and are not formed: each stage is the
 /// stage velocity and its acceleration, and the result is the same as the general step's.
 /// Writes the new phase to `y1`, the stages to `k` (k.k7 = f(y1), first same as last) and
-/// returns the scaled error norm of the embedded 4th-order difference (accept when <= 1).
+/// returns the error norm of the embedded 4th-order difference (accept when <= 1): the
+/// scaled maximum norm of Hairer, Norsett & Wanner, "Solving Ordinary Differential
+/// Equations I", 2nd ed. (1993), sec. II.4, with the max norm in place of eq. 4.11's root
+/// mean square, each component divided by atol + rtol * max(|y0_i|, |y1_i|). The max
+/// norm lets no single component, such as the short horizontal distance of a steep shot,
+/// take the whole error budget.
+///
+/// The stages depend on each other, so a step's time is the chain of its six evaluations.
+/// The sums are arranged to keep that chain short: the coefficients are multiplied by h
+/// once, every stage sum is accumulated as soon as its terms are known, and only the
+/// newest evaluation is added when a stage is needed. The error terms are accumulated in
+/// the same way and the error scale is inverted while the last evaluation runs.
 template <Real T, class Accel>
 [[nodiscard]] T dp5_step(const Accel& accel, const phase<T>& y0, const phase<T>& k1, const T& h, phase<T>& y1,
                          dp5_stages<T>& k, const T& rtol, const T& atol) {
-  // Coefficients built from integers so that every type gets all its digits.
-  const T a21 = T(1) / T(5);
-  const T a31 = T(3) / T(40), a32 = T(9) / T(40);
-  const T a41 = T(44) / T(45), a42 = T(-56) / T(15), a43 = T(32) / T(9);
-  const T a51 = T(19372) / T(6561), a52 = T(-25360) / T(2187), a53 = T(64448) / T(6561),
-          a54 = T(-212) / T(729);
-  const T a61 = T(9017) / T(3168), a62 = T(-355) / T(33), a63 = T(46732) / T(5247),
-          a64 = T(49) / T(176), a65 = T(-5103) / T(18656);
-  const T b1 = T(35) / T(384), b3 = T(500) / T(1113), b4 = T(125) / T(192), b5 = T(-2187) / T(6784),
-          b6 = T(11) / T(84);
-  // e = b - b_hat (5th minus 4th order weights).
-  const T e1 = T(71) / T(57600), e3 = T(-71) / T(16695), e4 = T(71) / T(1920),
-          e5 = T(-17253) / T(339200), e6 = T(22) / T(525), e7 = T(-1) / T(40);
+  using std::abs;
+  using std::max;
+  // Coefficients built from integers so that every type gets all its digits, times h.
+  const T a21 = h * (T(1) / T(5));
+  const T a31 = h * (T(3) / T(40)), a32 = h * (T(9) / T(40));
+  const T a41 = h * (T(44) / T(45)), a42 = h * (T(-56) / T(15)), a43 = h * (T(32) / T(9));
+  const T a51 = h * (T(19372) / T(6561)), a52 = h * (T(-25360) / T(2187)), a53 = h * (T(64448) / T(6561)),
+          a54 = h * (T(-212) / T(729));
+  const T a61 = h * (T(9017) / T(3168)), a62 = h * (T(-355) / T(33)), a63 = h * (T(46732) / T(5247)),
+          a64 = h * (T(49) / T(176)), a65 = h * (T(-5103) / T(18656));
+  const T b1 = h * (T(35) / T(384)), b3 = h * (T(500) / T(1113)), b4 = h * (T(125) / T(192)),
+          b5 = h * (T(-2187) / T(6784)), b6 = h * (T(11) / T(84));
+  // e = b - b_hat (5th minus 4th order weights), times h.
+  const T e1 = h * (T(71) / T(57600)), e3 = h * (T(-71) / T(16695)), e4 = h * (T(71) / T(1920)),
+          e5 = h * (T(-17253) / T(339200)), e6 = h * (T(22) / T(525)), e7 = h * (T(-1) / T(40));
 
   // Everything in locals first: the outputs may alias the inputs (k7 becomes the next
   // k1), and locals let the compiler keep the stages in registers.
   const vec3<T> p0 = y0.position;
   const vec3<T> v0 = y0.velocity;
   const vec3<T> f1 = k1.velocity;
-  const vec3<T> v2 = v0 + h * (a21 * f1);
+  const vec3<T> v2 = v0 + a21 * f1;
+  vec3<T> s3 = v0 + a31 * f1;
+  vec3<T> s4 = v0 + a41 * f1;
+  vec3<T> s5 = v0 + a51 * f1;
+  vec3<T> s6 = v0 + a61 * f1;
+  vec3<T> s7 = v0 + b1 * f1;
+  vec3<T> ev = e1 * f1;
   const vec3<T> f2 = accel(v2);
-  const vec3<T> v3 = v0 + h * (a31 * f1 + a32 * f2);
+  const vec3<T> v3 = s3 + a32 * f2;
+  s4 += a42 * f2;
+  s5 += a52 * f2;
+  s6 += a62 * f2;
   const vec3<T> f3 = accel(v3);
-  const vec3<T> v4 = v0 + h * (a41 * f1 + a42 * f2 + a43 * f3);
+  const vec3<T> v4 = s4 + a43 * f3;
+  s5 += a53 * f3;
+  s6 += a63 * f3;
+  s7 += b3 * f3;
+  ev += e3 * f3;
   const vec3<T> f4 = accel(v4);
-  const vec3<T> v5 = v0 + h * (a51 * f1 + a52 * f2 + a53 * f3 + a54 * f4);
+  const vec3<T> v5 = s5 + a54 * f4;
+  s6 += a64 * f4;
+  s7 += b4 * f4;
+  ev += e4 * f4;
   const vec3<T> f5 = accel(v5);
-  const vec3<T> v6 = v0 + h * (a61 * f1 + a62 * f2 + a63 * f3 + a64 * f4 + a65 * f5);
+  const vec3<T> v6 = s6 + a65 * f5;
+  s7 += b5 * f5;
+  ev += e5 * f5;
   const vec3<T> f6 = accel(v6);
-  const vec3<T> v7 = v0 + h * (b1 * f1 + b3 * f3 + b4 * f4 + b5 * f5 + b6 * f6);
-  const vec3<T> p7 = p0 + h * (b1 * v0 + b3 * v3 + b4 * v4 + b5 * v5 + b6 * v6);
+  const vec3<T> v7 = s7 + b6 * f6;
+  ev += e6 * f6;
   const vec3<T> f7 = accel(v7);
-  phase<T> err;
-  err.position = h * (e1 * v0 + e3 * v3 + e4 * v4 + e5 * v5 + e6 * v6 + e7 * v7);
-  err.velocity = h * (e1 * f1 + e3 * f3 + e4 * f4 + e5 * f5 + e6 * f6 + e7 * f7);
-  const phase<T> start{p0, v0};
+  // Off the chain of evaluations: the new position, the position error and the inverse
+  // error scales (they do not need f7).
+  const vec3<T> p7 = p0 + (b1 * v0 + b3 * v3 + b4 * v4 + b5 * v5 + b6 * v6);
+  const vec3<T> ep = e1 * v0 + e3 * v3 + e4 * v4 + e5 * v5 + e6 * v6 + e7 * v7;
+  T worst(0);
+  vec3<T> inv_sv;
+  for (int i = 0; i < 3; ++i) {
+    const T sp = atol + rtol * max(T(abs(p0[i])), T(abs(p7[i])));
+    inv_sv[i] = T(1) / T(atol + rtol * max(T(abs(v0[i])), T(abs(v7[i]))));
+    worst = max(worst, T(abs(ep[i]) / sp));
+  }
+  ev += e7 * f7;
+  for (int i = 0; i < 3; ++i) worst = max(worst, T(abs(ev[i]) * inv_sv[i]));
   y1.position = p7;
   y1.velocity = v7;
   k.k1 = phase<T>{v0, f1};
@@ -112,7 +134,7 @@ template <Real T, class Accel>
   k.k5 = phase<T>{v5, f5};
   k.k6 = phase<T>{v6, f6};
   k.k7 = phase<T>{v7, f7};
-  return scaled_max(err, start, phase<T>{p7, v7}, rtol, atol);
+  return worst;
 }
 
 /// The continuous extension of one Dormand–Prince step: a polynomial of degree 4 in
@@ -158,12 +180,44 @@ class dp5_dense {
   phase<T> y0_, diff_, bspl_, r4_, r5_;
 };
 
+namespace approx {
+
+// Base-2 logarithm and power of a float to about 1e-4 (absolute in log2, relative in
+// exp2): enough for a step-size factor, and much cheaper than std::log2/std::exp2, which
+// sit on the chain from one step to the next (the new step size needs the error norm).
+// The exponent field gives the integer part (IEEE 754 binary32 layout, common practice);
+// the mantissa m in [1, 2) gets the series ln m = 2 (s + s^3/3 + s^5/5 + ...),
+// s = (m - 1) / (m + 1) <= 1/3 (the atanh series, Abramowitz & Stegun 4.1.27), whose
+// first omitted term is below 2 (1/3)^7 / 7 = 1.3e-4; 2^f for f in [0, 1) gets the
+// Taylor series of exp(f ln 2) to degree 5 (remainder below (ln 2)^6 / 720 = 1.6e-4).
+// Only for finite x > 0 (log2) and |x| < 100 (exp2); the callers clamp their arguments.
+[[nodiscard]] inline float log2(float x) {
+  const std::uint32_t bits = std::bit_cast<std::uint32_t>(x);
+  const int exponent = static_cast<int>((bits >> 23) & 0xffu) - 127;
+  const float m = std::bit_cast<float>((bits & 0x007fffffu) | 0x3f800000u);
+  const float s = (m - 1.0f) / (m + 1.0f);
+  const float s2 = s * s;
+  constexpr float two_over_ln2 = 2.8853900817779268f;  // 2 / ln 2
+  return static_cast<float>(exponent) + two_over_ln2 * s * (1.0f + s2 * (1.0f / 3.0f + s2 * (1.0f / 5.0f)));
+}
+
+[[nodiscard]] inline float exp2(float x) {
+  const float n = static_cast<float>(static_cast<int>(x >= 0.0f ? x : x - 1.0f));  // floor for |x| < 100
+  const float u = (x - n) * 0.69314718055994531f;  // f ln 2, f in [0, 1)
+  const float e = 1.0f + u * (1.0f + u * (0.5f + u * (1.0f / 6.0f + u * (1.0f / 24.0f + u * (1.0f / 120.0f)))));
+  const std::uint32_t scale = static_cast<std::uint32_t>(static_cast<int>(n) + 127) << 23;
+  return e * std::bit_cast<float>(scale);
+}
+
+}  // namespace approx
+
 /// Proportional–integral step-size control (Gustafsson's controller in the form of
 /// Hairer, Norsett & Wanner, "Solving ODEs I", sec. IV.2 and the DOPRI5 code):
 /// h_new = h * safety * err^-(1/5 - 0.75 beta) * err_old^beta, beta = 0.04, the factor
 /// kept in [1/5, 10] (and <= 1 right after a rejection). A step-size factor needs only a
-/// few digits, so it is computed in float from log2 of the error norms for every T (one
-/// log2 and one exp2 per step; a multiprecision pow would cost more than the step).
+/// few digits, so it is computed in float for every T, from base-2 logarithms of the
+/// error norms by the short series of `approx` (factor good to about 1e-4; a
+/// multiprecision pow would cost more than the step).
 template <Real T>
 class pi_controller {
  public:
@@ -171,21 +225,22 @@ class pi_controller {
   [[nodiscard]] T next(const T& h, const T& err, bool accepted) {
     constexpr float beta = 0.04f;
     constexpr float alpha = 0.2f - 0.75f * beta;
-    constexpr float safety = 0.9f;
-    const float e = std::max(static_cast<float>(err), 1e-9f);
-    const float log_e = std::log2(e);
-    float factor;
+    constexpr float log_safety = -0.15200309f;  // log2(0.9)
+    constexpr float log_lo = -2.3219281f;       // log2(1/5)
+    constexpr float log_hi = 3.3219281f;        // log2(10)
+    const float e = std::min(std::max(static_cast<float>(err), 1e-9f), 1e9f);
+    const float log_e = approx::log2(e);
+    float log_factor;
     if (accepted) {
-      factor = safety * std::exp2(-alpha * log_e + beta * log_old_);
-      factor = std::min(10.0f, std::max(0.2f, factor));
-      if (rejected_) factor = std::min(factor, 1.0f);
+      log_factor = log_safety - alpha * log_e + beta * log_old_;
+      log_factor = std::min(rejected_ ? 0.0f : log_hi, std::max(log_lo, log_factor));
       log_old_ = std::max(log_e, -13.287712f);  // err_old >= 1e-4
       rejected_ = false;
     } else {
-      factor = std::max(0.2f, safety * std::exp2(-0.2f * log_e));
+      log_factor = std::min(0.0f, std::max(log_lo, log_safety - 0.2f * log_e));
       rejected_ = true;
     }
-    return T(h * T(factor));
+    return T(h * T(approx::exp2(log_factor)));
   }
 
  private:
