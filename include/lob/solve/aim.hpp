@@ -73,8 +73,33 @@ template <Real T>
   return {};
 }
 
-// Completes a solution from a launch velocity and the time it meets the target: flies it
-// with lob::fly() and records the arrival.
+// The state at time t >= 0 of the closed-form flight (vacuum, linear drag) launched from
+// `launch` at `velocity`: linear_flight's motion x0 + v0 t phi1(kt) + A t^2 phi2(kt),
+// v0 e^-kt + A t phi1(kt), A = g + k wind, evaluated as it does (the same state
+// `fly(...).at(t)` gives) without building the flight, whose construction (checks,
+// apex constants) costs more than the state itself.
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<state<T>> closed_form_state(const M& model, const medium<T>& air, const vec3<T>& launch,
+                                                 const vec3<T>& velocity, const T& t) {
+  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(velocity)) return fail(errc::invalid_argument, "launch velocity must be finite");
+  if (!is_finite(t) || t < T(0)) return fail(errc::invalid_argument, "time must be finite and >= 0", t);
+  const T k = model_traits<M>::linear_rate(model);
+  const T z = k * t;
+  const decay_pair<T> d = decay(z);
+  const vec3<T> pull = air.gravity + k * air.wind;
+  state<T> e;
+  e.time = t;
+  e.position = launch + velocity * T(t * d.phi1) + pull * T(t * t * phi2(z, d));
+  e.velocity = velocity * d.factor + pull * T(t * d.phi1);
+  if (!is_finite(e.position) || !is_finite(e.velocity))
+    return fail(errc::invalid_argument, "the state overflows T at time", t);
+  return e;
+}
+
+// Completes a solution from a launch velocity and the time it meets the target and
+// records the arrival: from the closed form for vacuum and linear drag, else by flying
+// it with lob::fly().
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<aim_solution<T>> complete(const M& model, const medium<T>& air, const aim_frame<T>& frame,
                                                const vec3<T>& launch, const vec3<T>& velocity, const T& time,
@@ -86,13 +111,22 @@ template <DragModel M, Real T = scalar_of<M>>
   s.elevation = frame.elevation_of(velocity);
   s.azimuth = frame.azimuth_of(velocity);
   s.time_of_flight = time;
-  const auto flight = fly(model, air, shot<T>{launch, velocity}, o.flight);
-  if (!flight) return unexpected<error>(flight.error());
-  const result<state<T>> end = flight->at(time);
+  const result<state<T>> end = [&]() -> result<state<T>> {
+    if constexpr (model_traits<M>::closed_form) {
+      (void)o;
+      return closed_form_state(model, air, launch, velocity, time);
+    } else {
+      const auto flight = fly(model, air, shot<T>{launch, velocity}, o.flight);
+      if (!flight) return unexpected<error>(flight.error());
+      return flight->at(time);
+    }
+  }();
   if (!end) return unexpected<error>(end.error());
   s.arrival = *end;
   s.arrival_speed = lob::speed(*end);
-  s.descent_angle = path_angle_below_horizon(*end, air);
+  // path_angle_below_horizon(*end, air), from the frame's axes at hand (it would rebuild
+  // "up" twice, each with a square root and divisions).
+  s.descent_angle = -frame.elevation_of(end->velocity);
   return s;
 }
 
@@ -115,21 +149,22 @@ struct time_form {
   struct values {
     T tau, decay, mm, mm1;
   };
+  // e^-kt, phi1 and phi2 from one exponential (decay_pair; phi2 by its series below
+  // kt = 1/2), as linear_flight evaluates them.
   [[nodiscard]] values eval(const T& t) const {
-    using std::exp;
     const T z = k * t;
-    const T tau = t * phi1(z);
-    const T decay = exp(-z);
-    const vec3<T> m = n0 + drift * t + wind * tau - g * T(t * t * phi2(z));
-    const vec3<T> m1 = drift + wind * decay - g * tau;
-    return {tau, decay, T(m.squaredNorm()), T(m.dot(m1))};
+    const decay_pair<T> d = decay(z);
+    const T tau = t * d.phi1;
+    const vec3<T> m = n0 + drift * t + wind * tau - g * T(t * t * phi2(z, d));
+    const vec3<T> m1 = drift + wind * d.factor - g * tau;
+    return {tau, d.factor, T(m.squaredNorm()), T(m.dot(m1))};
   }
   [[nodiscard]] vec3<T> m_at(const T& t) const {
     const T z = k * t;
-    const T tau = t * phi1(z);
-    return vec3<T>(n0 + drift * t + wind * tau - g * T(t * t * phi2(z)));
+    const decay_pair<T> d = decay(z);
+    return vec3<T>(n0 + drift * t + wind * T(t * d.phi1) - g * T(t * t * phi2(z, d)));
   }
-  [[nodiscard]] T tau_at(const T& t) const { return T(t * phi1(T(k * t))); }
+  [[nodiscard]] T tau_at(const T& t) const { return T(t * decay(T(k * t)).phi1); }
   // Launch speed squared that meets the point at time t.
   [[nodiscard]] T need2(const T& t) const {
     const values v = eval(t);
@@ -178,17 +213,52 @@ template <Real T>
   return bracketed_root(h, lo, hi, f_lo, f_hi, max_iter, "least-speed time did not converge");
 }
 
-// A root of need2(t) = u2 in [lo, hi] (need2 - u2 changes sign): safeguarded Newton
-// with the exact slope 2 H / tau^2, from `guess`.
+// A root of F = need2 - u2 in [lo, hi] (F changes sign; `lo_positive`: F(lo) > 0) by
+// Newton's method with the exact slope 2 H / tau^2, from `t`, one end of the bracket,
+// whose (F, F') are `v`. need2 is convex in t in vacuum (and, as the property tests check,
+// under drag), so from the outer end the iterates approach the root from one side and the
+// steps shrink quadratically. A step that leaves the bracket, or that fails to halve while
+// still large, bisects instead. It stops at a Newton step below 4 ulps of t, or at the
+// first small Newton step (below sqrt(eps) t) that fails to halve the one before: the
+// steps then no longer shrink because the rounding of F, not the distance to the root,
+// sets them (bisecting on from there, as a plain safeguarded Newton would, costs up to one
+// evaluation per bit of the still wide bracket and gains nothing). A small step whose
+// successor, extrapolated from the quadratic convergence of the last two, falls below an
+// ulp is taken without evaluating F again.
 template <Real T>
-[[nodiscard]] result<T> meeting_time(const time_form<T>& f, const T& u2, const T& lo, const T& hi, const T& f_lo,
-                                     const T& guess, std::uintmax_t max_iter) {
-  return safe_newton(
-      [&](const T& x) {
-        const std::pair<T, T> p = f.need2_and_slope(x);
-        return std::pair<T, T>(T(p.first - u2), p.second);
-      },
-      lo, hi, f_lo, guess, max_iter, "meeting time did not converge");
+[[nodiscard]] result<T> meeting_time(const time_form<T>& f, const T& u2, T lo, T hi, bool lo_positive, T t,
+                                     std::pair<T, T> v, std::uintmax_t max_iter) {
+  using std::abs;
+  using std::sqrt;
+  const T eps = epsilon<T>();
+  const T small = sqrt(eps);
+  T last = hi - lo;
+  bool last_newton = false;
+  for (std::uintmax_t i = 0; i < max_iter; ++i) {
+    if (v.first == T(0)) return t;
+    if ((v.first > T(0)) == lo_positive) lo = t;
+    else hi = t;
+    T next = v.second != T(0) ? T(t - v.first / v.second) : T((lo + hi) / 2);
+    T step = abs(T(next - t));
+    const bool inside = next > lo && next < hi;
+    if (step <= 4 * eps * abs(t)) return inside ? next : t;
+    if (inside && last_newton && step > last / 2 && last <= small * abs(t)) return next;
+    // Quadratic convergence: the step after this one is about step^3 / last^2; when that
+    // is below an ulp, this step lands on the root and need not be checked.
+    if (inside && last_newton && step <= small * abs(t) && step * step * step <= eps * abs(t) * last * last)
+      return next;
+    last_newton = inside && !(step > last / 2);
+    if (!last_newton) {
+      next = (lo + hi) / 2;
+      step = abs(T(next - t));
+    }
+    if (!(hi - lo > 4 * eps * abs(next))) return next;
+    last = step;
+    t = next;
+    v = f.need2_and_slope(t);
+    v.first -= u2;
+  }
+  return fail(errc::no_convergence, "meeting time did not converge");
 }
 
 template <Real T>
@@ -232,7 +302,7 @@ template <Real T>
 // out_of_reach. The split between the two roots needs only a time where F < 0: the vacuum
 // least-speed time usually is one (one evaluation); only when it is not is the exact
 // minimum of F located (least_time) to tell a target out of reach from one just inside.
-// Each root is then polished by safeguarded Newton from the vacuum times.
+// Each root is then found by Newton's method from the vacuum times (meeting_time).
 template <Real T>
 [[nodiscard]] result<time_roots<T>> time_form_roots(const time_form<T>& f, const T& u, const T& scale,
                                                      std::uintmax_t max_iter) {
@@ -256,24 +326,31 @@ template <Real T>
       return unexpected<error>(e);
     }
   }
+  // (F, F') at t.
+  auto at = [&](const T& t) {
+    std::pair<T, T> v = f.need2_and_slope(t);
+    v.first -= u2;
+    return v;
+  };
   T lo = vac && vf < split ? vf : T(split / 2);
-  T f_lo = T(f.need2(lo) - u2);
-  for (int i = 0; !(f_lo > T(0)); ++i) {
+  std::pair<T, T> v_lo = at(lo);
+  for (int i = 0; !(v_lo.first > T(0)); ++i) {
     if (i > 1000 || !(lo > T(0))) return fail(errc::no_convergence, "aim: no lower time bracket");
     lo /= 2;
-    f_lo = T(f.need2(lo) - u2);
+    v_lo = at(lo);
   }
   T hi = vac && vl > split ? vl : T(split * 2);
-  T f_hi = T(f.need2(hi) - u2);
-  for (int i = 0; !(f_hi > T(0)); ++i) {
+  std::pair<T, T> v_hi = at(hi);
+  for (int i = 0; !(v_hi.first > T(0)); ++i) {
     if (i > 1000 || !is_finite(hi)) return fail(errc::no_convergence, "aim: no upper time bracket");
     hi *= 2;
-    f_hi = T(f.need2(hi) - u2);
+    v_hi = at(hi);
   }
-  // Drag lengthens the flat flight and shortens the lofted one: start from the far ends.
-  const result<T> t1 = meeting_time(f, u2, lo, split, f_lo, lo, max_iter);
+  // Drag lengthens the flat flight and shortens the lofted one: start from the far ends,
+  // whose evaluations above are the first Newton steps.
+  const result<T> t1 = meeting_time(f, u2, lo, split, true, lo, v_lo, max_iter);
   if (!t1) return unexpected<error>(t1.error());
-  const result<T> t2 = meeting_time(f, u2, split, hi, f_split, hi, max_iter);
+  const result<T> t2 = meeting_time(f, u2, split, hi, false, hi, v_hi, max_iter);
   if (!t2) return unexpected<error>(t2.error());
   return time_roots<T>{*t1, *t2, split, false};
 }
