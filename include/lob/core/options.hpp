@@ -21,8 +21,13 @@ enum class stepper {
 template <Real T>
 struct flight_options {
   stepper method = stepper::adaptive;
-  T relative_tolerance = T(1) / T(1000000000);  ///< adaptive only, in [1e-15, 1e-2]
-  T absolute_tolerance = T(1) / T(1000000000);  ///< adaptive only, > 0
+  /// Adaptive only, in [1e-15, 1e-2]. Each Dormand–Prince step keeps the error estimate of
+  /// every position [m] and velocity [m/s] component below
+  /// absolute_tolerance + relative_tolerance * max(|start|, |end|) of that component
+  /// (positions relative to the launch point); measured result: landing time, range and
+  /// apex within relative_tolerance of a high-precision reference when both are equal.
+  T relative_tolerance = T(1) / T(1000000000);
+  T absolute_tolerance = T(1) / T(1000000000);  ///< adaptive only, > 0; see relative_tolerance
   T initial_step = T(0);                        ///< [s]; 0 picks one automatically
   T fixed_step = T(1) / T(60);                  ///< [s]; fixed-step methods only
   std::int64_t max_steps = 1000000;             ///< per query

@@ -36,9 +36,11 @@ namespace lob {
 /// control; events (apex, height crossings, landing, distance) are located on its dense
 /// output by Boost.Math's TOMS 748 root finder to the full precision of T. The
 /// integration stops at the apex and restarts there, so that the kink of |v| v where a
-/// vertical throw turns over does not spoil the steps after it. The requested relative
-/// tolerance is met on landing time and range (measured against a 25-digit reference in
-/// tests/integrate). Fixed-step methods (RK4, semi-implicit Euler) step from the launch
+/// vertical throw turns over does not spoil the steps after it. Each step keeps its error
+/// estimate below atol + rtol * max(|y0_i|, |y1_i|) in every position and velocity
+/// component (the requested tolerances, positions relative to the launch); the requested
+/// relative tolerance is then met on landing time and range (measured against a 25-digit
+/// reference in tests/integrate). Fixed-step methods (RK4, semi-implicit Euler) step from the launch
 /// with `fixed_step` and are reproducible bit for bit; their events are located on a
 /// cubic Hermite interpolant between steps.
 ///
