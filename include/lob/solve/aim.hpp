@@ -176,6 +176,28 @@ struct time_form {
     const T t2 = v.tau * v.tau;
     return {T(v.mm / t2), T(2 * (v.mm1 - v.mm * v.decay / v.tau) / t2)};
   }
+  // need2 and its first two derivatives: with N = |M|^2, e = e^-kt, M'' = -(g + k w) e,
+  // need2' = 2 H / tau^2 and need2'' = 2 H' / tau^2 - 4 H e / tau^3, where
+  // H' = |M'|^2 + M.M'' - 2 (M.M') e / tau + N e (k tau + e) / tau^2.
+  struct derivs {
+    T f, d1, d2;
+  };
+  [[nodiscard]] derivs need2_derivs(const T& t) const {
+    const T z = k * t;
+    const decay_pair<T> d = decay(z);
+    const T e = d.factor;
+    const T tau = t * d.phi1;
+    const vec3<T> m = n0 + drift * t + wind * tau - g * T(t * t * phi2(z, d));
+    const vec3<T> m1 = drift + wind * e - g * tau;
+    const vec3<T> m2 = -(g + k * wind) * e;
+    const T mm = m.squaredNorm();
+    const T mm1 = m.dot(m1);
+    const T r = e / tau;
+    const T h = mm1 - mm * r;
+    const T h1 = T(m1.squaredNorm()) + T(m.dot(m2)) - 2 * mm1 * r + mm * r * T(k + r);
+    const T t2 = tau * tau;
+    return {T(mm / t2), T(2 * h / t2), T(T(2 * h1 - 4 * h * r) / t2)};
+  }
   // H = M.M' - |M|^2 e^-kt / tau, of the sign of F'.
   [[nodiscard]] T h_of(const T& t) const {
     const values v = eval(t);
@@ -214,49 +236,53 @@ template <Real T>
 }
 
 // A root of F = need2 - u2 in [lo, hi] (F changes sign; `lo_positive`: F(lo) > 0) by
-// Newton's method with the exact slope 2 H / tau^2, from `t`, one end of the bracket,
-// whose (F, F') are `v`. need2 is convex in t in vacuum (and, as the property tests check,
-// under drag), so from the outer end the iterates approach the root from one side and the
-// steps shrink quadratically. A step that leaves the bracket, or that fails to halve while
-// still large, bisects instead. It stops at a Newton step below 4 ulps of t, or at the
-// first small Newton step (below sqrt(eps) t) that fails to halve the one before: the
-// steps then no longer shrink because the rounding of F, not the distance to the root,
-// sets them (bisecting on from there, as a plain safeguarded Newton would, costs up to one
-// evaluation per bit of the still wide bracket and gains nothing). A small step whose
-// successor, extrapolated from the quadratic convergence of the last two, falls below an
-// ulp is taken without evaluating F again.
+// Halley's method (cubic convergence, from F, F' = 2 H / tau^2 and F'', all from one
+// exponential) from `t`, one end of the bracket, whose F, F', F'' are `v`. need2 is
+// convex in t in vacuum (and, as the property tests check, under drag). Where Halley's
+// correction to the Newton step is large (|F F'' / 2 F'^2| > 1/2, far from the root) the
+// Newton step is taken; a step that leaves the bracket, or that fails to halve while still
+// large, bisects instead. It stops at a step below 4 ulps of t, or at the first small step
+// (below sqrt(eps) t) that fails to halve the one before: the steps then no longer shrink
+// because the rounding of F, not the distance to the root, sets them (bisecting on from
+// there, as a plain safeguarded Newton would, costs up to one evaluation per bit of the
+// still wide bracket and gains nothing). A small step whose successor, extrapolated as if
+// the convergence were only quadratic (step^3 / last^2, an overestimate for Halley's),
+// falls below an ulp is taken without evaluating F again.
 template <Real T>
 [[nodiscard]] result<T> meeting_time(const time_form<T>& f, const T& u2, T lo, T hi, bool lo_positive, T t,
-                                     std::pair<T, T> v, std::uintmax_t max_iter) {
+                                     typename time_form<T>::derivs v, std::uintmax_t max_iter) {
   using std::abs;
   using std::sqrt;
   const T eps = epsilon<T>();
   const T small = sqrt(eps);
   T last = hi - lo;
-  bool last_newton = false;
+  bool last_iterate = false;
   for (std::uintmax_t i = 0; i < max_iter; ++i) {
-    if (v.first == T(0)) return t;
-    if ((v.first > T(0)) == lo_positive) lo = t;
+    if (v.f == T(0)) return t;
+    if ((v.f > T(0)) == lo_positive) lo = t;
     else hi = t;
-    T next = v.second != T(0) ? T(t - v.first / v.second) : T((lo + hi) / 2);
+    T next = T((lo + hi) / 2);
+    if (v.d1 != T(0)) {
+      const T newton = v.f / v.d1;
+      const T a = newton * v.d2 / (2 * v.d1);
+      next = abs(a) <= T(1) / T(2) ? T(t - newton / (T(1) - a)) : T(t - newton);
+    }
     T step = abs(T(next - t));
     const bool inside = next > lo && next < hi;
     if (step <= 4 * eps * abs(t)) return inside ? next : t;
-    if (inside && last_newton && step > last / 2 && last <= small * abs(t)) return next;
-    // Quadratic convergence: the step after this one is about step^3 / last^2; when that
-    // is below an ulp, this step lands on the root and need not be checked.
-    if (inside && last_newton && step <= small * abs(t) && step * step * step <= eps * abs(t) * last * last)
+    if (inside && last_iterate && step > last / 2 && last <= small * abs(t)) return next;
+    if (inside && last_iterate && step <= small * abs(t) && step * step * step <= eps * abs(t) * last * last)
       return next;
-    last_newton = inside && !(step > last / 2);
-    if (!last_newton) {
+    last_iterate = inside && !(step > last / 2);
+    if (!last_iterate) {
       next = (lo + hi) / 2;
       step = abs(T(next - t));
     }
     if (!(hi - lo > 4 * eps * abs(next))) return next;
     last = step;
     t = next;
-    v = f.need2_and_slope(t);
-    v.first -= u2;
+    v = f.need2_derivs(t);
+    v.f -= u2;
   }
   return fail(errc::no_convergence, "meeting time did not converge");
 }
@@ -302,7 +328,7 @@ template <Real T>
 // out_of_reach. The split between the two roots needs only a time where F < 0: the vacuum
 // least-speed time usually is one (one evaluation); only when it is not is the exact
 // minimum of F located (least_time) to tell a target out of reach from one just inside.
-// Each root is then found by Newton's method from the vacuum times (meeting_time).
+// Each root is then found by Halley's method from the vacuum times (meeting_time).
 template <Real T>
 [[nodiscard]] result<time_roots<T>> time_form_roots(const time_form<T>& f, const T& u, const T& scale,
                                                      std::uintmax_t max_iter) {
@@ -326,28 +352,28 @@ template <Real T>
       return unexpected<error>(e);
     }
   }
-  // (F, F') at t.
+  // F = need2 - u2 and its derivatives at t.
   auto at = [&](const T& t) {
-    std::pair<T, T> v = f.need2_and_slope(t);
-    v.first -= u2;
+    typename time_form<T>::derivs v = f.need2_derivs(t);
+    v.f -= u2;
     return v;
   };
   T lo = vac && vf < split ? vf : T(split / 2);
-  std::pair<T, T> v_lo = at(lo);
-  for (int i = 0; !(v_lo.first > T(0)); ++i) {
+  typename time_form<T>::derivs v_lo = at(lo);
+  for (int i = 0; !(v_lo.f > T(0)); ++i) {
     if (i > 1000 || !(lo > T(0))) return fail(errc::no_convergence, "aim: no lower time bracket");
     lo /= 2;
     v_lo = at(lo);
   }
   T hi = vac && vl > split ? vl : T(split * 2);
-  std::pair<T, T> v_hi = at(hi);
-  for (int i = 0; !(v_hi.first > T(0)); ++i) {
+  typename time_form<T>::derivs v_hi = at(hi);
+  for (int i = 0; !(v_hi.f > T(0)); ++i) {
     if (i > 1000 || !is_finite(hi)) return fail(errc::no_convergence, "aim: no upper time bracket");
     hi *= 2;
     v_hi = at(hi);
   }
   // Drag lengthens the flat flight and shortens the lofted one: start from the far ends,
-  // whose evaluations above are the first Newton steps.
+  // whose evaluations above give the first steps.
   const result<T> t1 = meeting_time(f, u2, lo, split, true, lo, v_lo, max_iter);
   if (!t1) return unexpected<error>(t1.error());
   const result<T> t2 = meeting_time(f, u2, split, hi, false, hi, v_hi, max_iter);
