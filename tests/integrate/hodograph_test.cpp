@@ -454,12 +454,13 @@ TEST_CASE("a descent too deep for float is an error, not an overflow") {
 // time. The distance given is rounded to T, and near a steep descent time and height are
 // sensitive to it (dt = dx / u, dy = tan(phi) dx), so each bound carries that condition
 // factor on top of the method's tolerance.
-TEST_CASE_TEMPLATE("the point at a distance matches the mpmath reference", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("the points at a distance and at a time match the mpmath reference", T, float, double, long double, mp50) {
   using lob::detail::hodograph_at_distance;
   const std::vector<reference_row> rows = reference();
   REQUIRE(!rows.empty());
   const T never = T(1000000);
-  double worst_time = 0, worst_rise = 0;
+  using lob::detail::hodograph_at_time;
+  double worst_time = 0, worst_rise = 0, worst_at_time = 0;
   int checked = 0;
   for (const reference_row& r : rows) {
     const double th_d = std::strtod(r[col::theta].c_str(), nullptr);
@@ -484,11 +485,19 @@ TEST_CASE_TEMPLATE("the point at a distance matches the mpmath reference", T, fl
     CHECK_MESSAGE(et <= tolerance<T>::value, "time, theta ", r[col::theta], " c ", r[col::c], " err ", et);
     CHECK_MESSAGE(ey <= tolerance<T>::value, "rise, theta ", r[col::theta], " c ", r[col::c], " err ", ey);
     CHECK(p->distance == x);
+    // and at the reference's landing time, the landing point (well conditioned: dx = u dt)
+    const lob::result<hodograph_point<T>> q = hodograph_at_time(c, g, v, th, parse<T>(r[col::t_land]));
+    REQUIRE(q.has_value());
+    const double ex = rel_err(q->distance, r[col::x_land]);
+    const double eh = static_cast<double>(T(abs(T(q->rise - hh)))) / length;
+    worst_at_time = std::max({worst_at_time, ex, eh});
+    CHECK_MESSAGE(ex <= tolerance<T>::value, "distance at time, theta ", r[col::theta], " err ", ex);
+    CHECK_MESSAGE(eh <= tolerance<T>::value, "height at time, theta ", r[col::theta], " err ", eh);
     ++checked;
   }
   CHECK(checked > 100);
-  MESSAGE("max conditioned rel err at a distance: time ", worst_time, ", height ", worst_rise, " (", checked,
-          " rows)");
+  MESSAGE("max conditioned rel err at a distance: time ", worst_time, ", height ", worst_rise,
+          "; at a time: ", worst_at_time, " (", checked, " rows)");
 }
 
 TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float, double, long double, mp50) {
@@ -515,7 +524,7 @@ TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float,
 // Through fly(): the hodograph path's at_distance in 3-D (launch off the origin, any
 // azimuth) against lob's adaptive path at a tight tolerance (a different method: the
 // Dormand-Prince integration of the Cartesian equations).
-TEST_CASE_TEMPLATE("a flight's state at a distance is the same on the fast and the adaptive path", T, double,
+TEST_CASE_TEMPLATE("a flight's states at a distance and a time are the same on the fast and the adaptive path", T, double,
                    long double) {
   const lob::quadratic_drag<T> m{.coefficient = T(1) / T(80)};
   const lob::medium<T> air;
@@ -543,6 +552,12 @@ TEST_CASE_TEMPLATE("a flight's state at a distance is the same on the fast and t
       CHECK(static_cast<double>(T((a->position - b->position).norm() / scale)) <= 1e-11);
       CHECK(static_cast<double>(T(abs(T(a->time / b->time - 1)))) <= 1e-11);
       CHECK(static_cast<double>(T((a->velocity - b->velocity).norm() / b->velocity.norm())) <= 1e-11);
+      const auto at_a = fast->at(b->time);
+      const auto at_b = ref->at(b->time);
+      REQUIRE(at_a);
+      REQUIRE(at_b);
+      CHECK(static_cast<double>(T((at_a->position - at_b->position).norm() / scale)) <= 1e-11);
+      CHECK(static_cast<double>(T((at_a->velocity - at_b->velocity).norm() / b->velocity.norm())) <= 1e-11);
     }
   }
 }

@@ -538,7 +538,8 @@ class hodograph_path {
     using std::atan;
     hodograph_point<T> p{s.time, s.distance, s.rise, r.time, T(atan(T(r.rise / r.distance)))};
     if (q == &hodograph_sums<T>::rise) p.rise = level;
-    else p.distance = level;
+    else if (q == &hodograph_sums<T>::distance) p.distance = level;
+    else p.time = level;
     return p;
   }
 
@@ -690,10 +691,46 @@ template <Real T>
   return path.search(climbs ? path.sigma0() : T(0), top, rise, -1, path.tau_max());
 }
 
+// The point where a quantity that grows along the whole flight (time or horizontal
+// distance) reaches `level` > 0: a search from the launch over apex and descent alike,
+// stopped by `max_time` and, for the distance, by its horizontal asymptote.
+template <Real T>
+[[nodiscard]] result<hodograph_point<T>> hodograph_search_growing(const T& c, const T& g, const T& v0,
+                                                                  const T& theta0, const T& level,
+                                                                  T hodograph_sums<T>::*q, const T& max_time) {
+  using path_t = hodograph_path<T>;
+  const path_t path(c, g, v0, theta0);
+  typename path_t::node_rates nodes;
+  hodograph_sums<T> s(T(0));
+  T a(0);
+  for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
+    T b = path.next_break(a);
+    if (b > path.tau_max()) b = path.tau_max();
+    const hodograph_sums<T> sb = s + path.integral(a, b, &nodes, q);
+    if (sb.*q >= level) {
+      const result<hodograph_point<T>> p = path.polish(a, s, b, sb, nodes, level, +1, q);
+      if (p && p->time > max_time) return fail(errc::time_limit, "the point is reached after max_time, at t =", p->time);
+      return p;
+    }
+    if (sb.time > max_time) return fail(errc::time_limit, "the point is not reached within max_time =", max_time);
+    // Deep in the descent (inclination below -84 degrees, sigma < -3) the distance gained
+    // per panel of width w shrinks like e^-w, so all that is left is about e^-w / (1 - e^-w)
+    // of the last gain (0.16 of it for w = 2); a gap of more than twice the last gain is
+    // beyond the asymptote.
+    const T gain = sb.*q - s.*q;
+    if (q == &hodograph_sums<T>::distance && path.sigma0() - b < T(-3) && level - sb.*q > 2 * gain)
+      return fail(errc::never_reaches, "the distance is beyond the horizontal asymptote of the descent, at",
+                  sb.*q);
+    if (b == path.tau_max()) break;
+    a = b;
+    s = sb;
+  }
+  return fail(errc::no_convergence, "the point lies beyond the quadrature's reach", level);
+}
+
 /// Where a flight under a = g - c |v| v in still air first reaches the horizontal distance
-/// `distance` [m] > 0 from its launch point (the distance grows along the whole flight,
-/// so the search runs from the launch over apex and descent alike). Inputs as for
-/// `hodograph_apex`; `max_time` [s] bounds the search.
+/// `distance` [m] > 0 from its launch point. Inputs as for `hodograph_apex`; `max_time`
+/// [s] bounds the search.
 /// Errors: `invalid_argument` for bad inputs; `never_reaches` for a vertical launch or a
 /// distance beyond the horizontal asymptote of the descent; `time_limit` when the distance
 /// is reached only after `max_time`; `no_convergence` if an iteration hits its cap.
@@ -705,35 +742,22 @@ template <Real T>
     return fail(errc::invalid_argument, "distance must be finite and > 0", distance);
   if (hodograph_vertical(theta0))
     return fail(errc::never_reaches, "a vertical shot never moves sideways, distance", distance);
-  using path_t = hodograph_path<T>;
-  const path_t path(c, g, v0, theta0);
-  typename path_t::node_rates nodes;
-  const auto q = &hodograph_sums<T>::distance;
-  hodograph_sums<T> s(T(0));
-  T a(0);
-  for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
-    T b = path.next_break(a);
-    if (b > path.tau_max()) b = path.tau_max();
-    const hodograph_sums<T> sb = s + path.integral(a, b, &nodes, q);
-    if (sb.distance >= distance) {
-      const result<hodograph_point<T>> p = path.polish(a, s, b, sb, nodes, distance, +1, q);
-      if (p && p->time > max_time) return fail(errc::time_limit, "the distance is reached after max_time, at t =", p->time);
-      return p;
-    }
-    if (sb.time > max_time) return fail(errc::time_limit, "the distance is not reached within max_time =", max_time);
-    // Deep in the descent (inclination below -84 degrees, sigma < -3) the distance gained
-    // per panel of width w shrinks like e^-w, so all that is left is about e^-w / (1 - e^-w)
-    // of the last gain (0.16 of it for w = 2); a gap of more than twice the last gain is
-    // beyond the asymptote.
-    const T gain = sb.distance - s.distance;
-    if (path.sigma0() - b < T(-3) && distance - sb.distance > 2 * gain)
-      return fail(errc::never_reaches, "the distance is beyond the horizontal asymptote of the descent, at",
-                  sb.distance);
-    if (b == path.tau_max()) break;
-    a = b;
-    s = sb;
-  }
-  return fail(errc::no_convergence, "the distance lies beyond the quadrature's reach", distance);
+  return hodograph_search_growing(c, g, v0, theta0, distance, &hodograph_sums<T>::distance, max_time);
+}
+
+/// The point of a flight under a = g - c |v| v in still air at time `t` [s] > 0 after
+/// launch, for a launch that is not vertical (the vertical closed forms are not written
+/// for times). Inputs as for `hodograph_apex`.
+/// Errors: `invalid_argument` for bad inputs or a vertical launch; `no_convergence` if an
+/// iteration hits its cap (or the descent is too deep for T).
+template <Real T>
+[[nodiscard]] result<hodograph_point<T>> hodograph_at_time(const T& c, const T& g, const T& v0, const T& theta0,
+                                                           const T& t) {
+  if (const status ok = hodograph_check(c, g, v0, theta0); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(t) || !(t > T(0))) return fail(errc::invalid_argument, "time must be finite and > 0", t);
+  if (hodograph_vertical(theta0))
+    return fail(errc::invalid_argument, "times along a vertical shot are not on the hodograph path");
+  return hodograph_search_growing(c, g, v0, theta0, t, &hodograph_sums<T>::time, t);
 }
 
 }  // namespace lob::detail
