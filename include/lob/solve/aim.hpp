@@ -159,12 +159,6 @@ struct time_form {
     const vec3<T> m1 = drift + wind * d.factor - g * tau;
     return {tau, d.factor, T(m.squaredNorm()), T(m.dot(m1))};
   }
-  [[nodiscard]] vec3<T> m_at(const T& t) const {
-    const T z = k * t;
-    const decay_pair<T> d = decay(z);
-    return vec3<T>(n0 + drift * t + wind * T(t * d.phi1) - g * T(t * t * phi2(z, d)));
-  }
-  [[nodiscard]] T tau_at(const T& t) const { return T(t * decay(T(k * t)).phi1); }
   // Launch speed squared that meets the point at time t.
   [[nodiscard]] T need2(const T& t) const {
     const values v = eval(t);
@@ -203,8 +197,13 @@ struct time_form {
     const values v = eval(t);
     return T(v.mm1 - v.mm * v.decay / v.tau);
   }
-  // The launch velocity that meets the point at time t.
-  [[nodiscard]] vec3<T> velocity(const T& t) const { return vec3<T>(m_at(t) / tau_at(t)); }
+  // The launch velocity that meets the point at time t: M(t) / tau(t), one exponential.
+  [[nodiscard]] vec3<T> velocity(const T& t) const {
+    const T z = k * t;
+    const decay_pair<T> d = decay(z);
+    const T tau = t * d.phi1;
+    return vec3<T>((n0 + drift * t + wind * tau - g * T(t * t * phi2(z, d))) / tau);
+  }
 };
 
 // The time of least needed speed: the root of H between a lower time where H < 0 and an
@@ -760,10 +759,15 @@ template <DragModel M, Real T = scalar_of<M>>
     return out;
   }
   // Integrated models: find the roots on flights at a looser tolerance (relative 1e-6, a
-  // quarter of the steps or fewer), then polish them on the caller's flights.
+  // quarter of the steps or fewer), then polish them on the caller's flights. Quadratic
+  // drag in still air is flown on the hodograph path, exact to rounding at any flight
+  // tolerance: its roots need neither the loose pass nor the polish.
+  bool exact_probes = model_traits<M>::closed_form;
+  if constexpr (model_traits<M>::quadratic_fast_path)
+    exact_probes = o.flight.use_fast_paths && o.flight.method == stepper::adaptive && air.wind == vec3<T>::Zero();
   shooter<M> coarse = sh;
   int coarse_bits = root_bits<T>();
-  if constexpr (!model_traits<M>::closed_form) {
+  if (!exact_probes) {
     const T loose = T(1) / T(1000000);
     if (coarse.probe_options.relative_tolerance < loose) coarse.probe_options.relative_tolerance = loose;
     if (coarse.probe_options.absolute_tolerance < loose) coarse.probe_options.absolute_tolerance = loose;
@@ -780,7 +784,7 @@ template <DragModel M, Real T = scalar_of<M>>
     T elev = *start;
     if constexpr (!model_traits<M>::closed_form) {
       const bool merged = first->flat && first->lofted && *first->flat == *first->lofted;
-      if (!merged) {
+      if (!merged && !exact_probes) {
         const result<T> e = polish_elevation(sh, sh.bearing, req.speed, *start, tol);
         if (!e) return unexpected<error>(e.error());
         elev = *e;
