@@ -79,44 +79,70 @@ template <Real T, class Accel>
 
   // Everything in locals first: the outputs may alias the inputs (k7 becomes the next
   // k1), and locals let the compiler keep the stages in registers.
+  //
+  // With an acceleration of the form gravity + drag(v - wind) (`drag_in_wind`) the stages
+  // carry the velocity in the air, u = v - wind, and the drag d alone: gravity enters each
+  // stage sum as c_i h g (c_i = sum_j a_ij, the stage's node), formed before the
+  // evaluations, so that neither the wind nor gravity lengthens the chain. The error
+  // terms use u and d directly: the weights e_i sum to zero, so the constant parts
+  // (wind, gravity) cancel from them exactly.
+  constexpr bool split = requires { accel.drag(y0.velocity); accel.gravity; accel.wind; };
+  vec3<T> g = vec3<T>::Zero();
+  vec3<T> w = vec3<T>::Zero();
+  if constexpr (split) {
+    g = accel.gravity;
+    w = accel.wind;
+  }
+  const auto drag = [&](const vec3<T>& u) {
+    if constexpr (split) {
+      return vec3<T>(accel.drag(u));
+    } else {
+      return vec3<T>(accel(u));
+    }
+  };
   const vec3<T> p0 = y0.position;
   const vec3<T> v0 = y0.velocity;
   const vec3<T> f1 = k1.velocity;
-  const vec3<T> v2 = v0 + a21 * f1;
-  vec3<T> s3 = v0 + a31 * f1;
-  vec3<T> s4 = v0 + a41 * f1;
-  vec3<T> s5 = v0 + a51 * f1;
-  vec3<T> s6 = v0 + a61 * f1;
-  vec3<T> s7 = v0 + b1 * f1;
-  vec3<T> ev = e1 * f1;
-  const vec3<T> f2 = accel(v2);
-  const vec3<T> v3 = s3 + a32 * f2;
-  s4 += a42 * f2;
-  s5 += a52 * f2;
-  s6 += a62 * f2;
-  const vec3<T> f3 = accel(v3);
-  const vec3<T> v4 = s4 + a43 * f3;
-  s5 += a53 * f3;
-  s6 += a63 * f3;
-  s7 += b3 * f3;
-  ev += e3 * f3;
-  const vec3<T> f4 = accel(v4);
-  const vec3<T> v5 = s5 + a54 * f4;
-  s6 += a64 * f4;
-  s7 += b4 * f4;
-  ev += e4 * f4;
-  const vec3<T> f5 = accel(v5);
-  const vec3<T> v6 = s6 + a65 * f5;
-  s7 += b5 * f5;
-  ev += e5 * f5;
-  const vec3<T> f6 = accel(v6);
-  const vec3<T> v7 = s7 + b6 * f6;
-  ev += e6 * f6;
-  const vec3<T> f7 = accel(v7);
-  // Off the chain of evaluations: the new position, the position error and the inverse
-  // error scales (they do not need f7).
+  const vec3<T> u0 = v0 - w;
+  // Stage 1 enters through f1 = g + d1 (gravity included); the other stages' gravity
+  // through (c_i - a_i1) h g.
+  const vec3<T> hg = h * g;
+  const vec3<T> u2 = u0 + a21 * f1;
+  vec3<T> s3 = u0 + (T(3) / T(10) - T(3) / T(40)) * hg + a31 * f1;
+  vec3<T> s4 = u0 + (T(4) / T(5) - T(44) / T(45)) * hg + a41 * f1;
+  vec3<T> s5 = u0 + (T(8) / T(9) - T(19372) / T(6561)) * hg + a51 * f1;
+  vec3<T> s6 = u0 + (T(1) - T(9017) / T(3168)) * hg + a61 * f1;
+  vec3<T> s7 = u0 + (T(1) - T(35) / T(384)) * hg + b1 * f1;
+  vec3<T> ev = e1 * f1 - (T(71) / T(57600)) * hg;
+  const vec3<T> d2 = drag(u2);
+  const vec3<T> u3 = s3 + a32 * d2;
+  s4 += a42 * d2;
+  s5 += a52 * d2;
+  s6 += a62 * d2;
+  const vec3<T> d3 = drag(u3);
+  const vec3<T> u4 = s4 + a43 * d3;
+  s5 += a53 * d3;
+  s6 += a63 * d3;
+  s7 += b3 * d3;
+  ev += e3 * d3;
+  const vec3<T> d4 = drag(u4);
+  const vec3<T> u5 = s5 + a54 * d4;
+  s6 += a64 * d4;
+  s7 += b4 * d4;
+  ev += e4 * d4;
+  const vec3<T> d5 = drag(u5);
+  const vec3<T> u6 = s6 + a65 * d5;
+  s7 += b5 * d5;
+  ev += e5 * d5;
+  const vec3<T> d6 = drag(u6);
+  const vec3<T> u7 = s7 + b6 * d6;
+  ev += e6 * d6;
+  const vec3<T> d7 = drag(u7);
+  // Off the chain of evaluations: velocities over ground, the new position, the position
+  // error and the inverse error scales (they do not need d7).
+  const vec3<T> v3 = u3 + w, v4 = u4 + w, v5 = u5 + w, v6 = u6 + w, v7 = u7 + w;
   const vec3<T> p7 = p0 + (b1 * v0 + b3 * v3 + b4 * v4 + b5 * v5 + b6 * v6);
-  const vec3<T> ep = e1 * v0 + e3 * v3 + e4 * v4 + e5 * v5 + e6 * v6 + e7 * v7;
+  const vec3<T> ep = e1 * u0 + e3 * u3 + e4 * u4 + e5 * u5 + e6 * u6 + e7 * u7;
   T worst(0);
   vec3<T> inv_sv;
   for (int i = 0; i < 3; ++i) {
@@ -124,18 +150,34 @@ template <Real T, class Accel>
     inv_sv[i] = T(1) / T(atol + rtol * max(T(abs(v0[i])), T(abs(v7[i]))));
     worst = max(worst, T(abs(ep[i]) / sp));
   }
-  ev += e7 * f7;
+  ev += e7 * d7;
   for (int i = 0; i < 3; ++i) worst = max(worst, T(abs(ev[i]) * inv_sv[i]));
   y1.position = p7;
   y1.velocity = v7;
   k.k1 = phase<T>{v0, f1};
-  k.k3 = phase<T>{v3, f3};
-  k.k4 = phase<T>{v4, f4};
-  k.k5 = phase<T>{v5, f5};
-  k.k6 = phase<T>{v6, f6};
-  k.k7 = phase<T>{v7, f7};
+  k.k3 = phase<T>{v3, vec3<T>(g + d3)};
+  k.k4 = phase<T>{v4, vec3<T>(g + d4)};
+  k.k5 = phase<T>{v5, vec3<T>(g + d5)};
+  k.k6 = phase<T>{v6, vec3<T>(g + d6)};
+  k.k7 = phase<T>{v7, vec3<T>(g + d7)};
   return worst;
 }
+
+/// An acceleration of the form gravity + drag(v - wind) with its parts visible to
+/// `dp5_step`, which then keeps gravity and wind off the chain of evaluations. Also a
+/// plain acceleration: `operator()` takes the velocity over ground [m/s].
+template <Real T, class M>
+struct drag_in_wind {
+  const M* model;
+  vec3<T> gravity;  ///< [m/s^2]
+  vec3<T> wind;     ///< [m/s]
+  /// The drag acceleration [m/s^2] for the velocity in the air `u` [m/s].
+  [[nodiscard]] vec3<T> drag(const vec3<T>& u) const { return vec3<T>(model->acceleration(u)); }
+  /// The whole acceleration [m/s^2] for the velocity over ground `v` [m/s].
+  [[nodiscard]] vec3<T> operator()(const vec3<T>& v) const {
+    return vec3<T>(gravity + drag(vec3<T>(v - wind)));
+  }
+};
 
 /// The continuous extension of one Dormand–Prince step: a polynomial of degree 4 in
 /// theta = (t - t0) / h that matches y0 and y1 and their derivatives, with local error of

@@ -414,7 +414,7 @@ class integrated_flight {
   [[nodiscard]] status walk_adaptive(const Visit& visit) const {
     using std::abs;
     using std::min;
-    const accel_fn f{&model_, air_.gravity, air_.wind};
+    const detail::drag_in_wind<T, M> f{&model_, air_.gravity, air_.wind};
     detail::phase<T> y = y0_;
     detail::phase<T> fy = detail::derivative(f, y);
     detail::phase<T> y1;
@@ -453,9 +453,12 @@ class integrated_flight {
           // Where |v| v has a kink inside the step (a vertical throw turning over), the
           // dense output misplaces the apex; Newton steps on the vertical velocity at the
           // end of the retaken step, v_up' = up . a, put it back to within the tolerance.
+          // The slack is a quarter of the step tolerance on the launch speed: a vertical
+          // velocity of that size misplaces the apex time by slack / g, which must stay
+          // below rtol times the apex time (a small correction costs one evaluation only).
           using std::abs;
           using std::sqrt;
-          const T slack = atol_ + rtol_ * T(sqrt(T(y0_.velocity.squaredNorm())));
+          const T slack = (atol_ + rtol_ * T(sqrt(T(y0_.velocity.squaredNorm())))) / 4;
           for (int i = 0; i < 4; ++i) {
             const T miss = up_.dot(y1.velocity);
             const T slope = up_.dot(k.k7.velocity);
