@@ -1,6 +1,8 @@
 // The hodograph fast path for quadratic drag in still air (lob/integrate/hodograph.hpp):
 // against the independent mpmath reference, the closed forms of vertical flight, facts of
 // the trade, and its error values.
+#include "lob/integrate/hodograph.hpp"
+
 #include <doctest/doctest.h>
 
 #include <boost/math/constants/constants.hpp>
@@ -15,7 +17,6 @@
 #include <type_traits>
 #include <vector>
 
-#include "lob/integrate/hodograph.hpp"
 #include "lob/lob.hpp"
 
 using mp50 = boost::multiprecision::cpp_bin_float_50;
@@ -29,10 +30,14 @@ namespace {
 // A decimal string at the full precision of T (strtod and friends round correctly).
 template <class T>
 T parse(const std::string& text) {
-  if constexpr (std::is_same_v<T, float>) return std::strtof(text.c_str(), nullptr);
-  else if constexpr (std::is_same_v<T, double>) return std::strtod(text.c_str(), nullptr);
-  else if constexpr (std::is_same_v<T, long double>) return std::strtold(text.c_str(), nullptr);
-  else return T(text);
+  if constexpr (std::is_same_v<T, float>)
+    return std::strtof(text.c_str(), nullptr);
+  else if constexpr (std::is_same_v<T, double>)
+    return std::strtod(text.c_str(), nullptr);
+  else if constexpr (std::is_same_v<T, long double>)
+    return std::strtold(text.c_str(), nullptr);
+  else
+    return T(text);
 }
 
 // One row of tests/data/hodograph_reference.csv (written by scripts/hodograph_reference.py:
@@ -44,8 +49,24 @@ struct reference_row {
   [[nodiscard]] bool has_rise() const { return f[9] != "nan"; }
 };
 
-enum col : std::size_t { v0, theta, c, g, h, t_apex, x_apex, y_apex, v_apex, t_rise, x_rise, v_rise,
-                         t_land, x_land, v_land, phi_land };
+enum col : std::size_t {
+  v0,
+  theta,
+  c,
+  g,
+  h,
+  t_apex,
+  x_apex,
+  y_apex,
+  v_apex,
+  t_rise,
+  x_rise,
+  v_rise,
+  t_land,
+  x_land,
+  v_land,
+  phi_land
+};
 
 std::vector<reference_row> reference() {
   std::ifstream in(LOB_TEST_DATA_DIR "/hodograph_reference.csv");
@@ -86,10 +107,22 @@ struct tolerance;
 // Measured maxima over the table (reported by the MESSAGE of each case): float 9e-7,
 // double 2e-15, long double 3e-18, 50 digits 5e-25 (the table carries 25 digits). The
 // bounds: the required 1e-13 for double, a few times the measured maxima for the others.
-template <> struct tolerance<float> { static constexpr double value = 4e-6; };
-template <> struct tolerance<double> { static constexpr double value = 1e-13; };
-template <> struct tolerance<long double> { static constexpr double value = 2e-17; };
-template <> struct tolerance<mp50> { static constexpr double value = 1e-23; };
+template <>
+struct tolerance<float> {
+  static constexpr double value = 4e-6;
+};
+template <>
+struct tolerance<double> {
+  static constexpr double value = 1e-13;
+};
+template <>
+struct tolerance<long double> {
+  static constexpr double value = 2e-17;
+};
+template <>
+struct tolerance<mp50> {
+  static constexpr double value = 1e-23;
+};
 
 template <class T>
 T pi_half() {
@@ -123,10 +156,12 @@ TEST_CASE("the reference table is there and covers the intended ranges") {
   CHECK(below);
 }
 
-TEST_CASE_TEMPLATE("apex, crossings and landing match the mpmath reference", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("apex, crossings and landing match the mpmath reference", T, float, double, long double,
+                   mp50) {
   const std::vector<reference_row> rows = reference();
   REQUIRE(!rows.empty());
-  double worst[6] = {0, 0, 0, 0, 0, 0};  // apex height, apex time, landing time, range, landing speed, rising time
+  double worst[6] = {0, 0, 0,
+                     0, 0, 0};  // apex height, apex time, landing time, range, landing speed, rising time
   int checked = 0;
   for (const reference_row& r : rows) {
     const T c = parse<T>(r[col::c]), g = parse<T>(r[col::g]), v = parse<T>(r[col::v0]);
@@ -160,8 +195,9 @@ TEST_CASE_TEMPLATE("apex, crossings and landing match the mpmath reference", T, 
     if (r.has_rise()) {
       const lob::result<hodograph_point<T>> up = hodograph_crossing(c, g, v, th, hh, side::rising);
       REQUIRE(up.has_value());
-      const double er = std::max({rel_err(up->time, r[col::t_rise]), rel_err(up->distance, r[col::x_rise], floor),
-                                  rel_err(up->speed, r[col::v_rise])});
+      const double er =
+          std::max({rel_err(up->time, r[col::t_rise]), rel_err(up->distance, r[col::x_rise], floor),
+                    rel_err(up->speed, r[col::v_rise])});
       worst[5] = std::max(worst[5], er);
       CHECK_MESSAGE(er <= tolerance<T>::value, "rising crossing, theta ", r[col::theta], " err ", er);
     }
@@ -210,12 +246,14 @@ TEST_CASE_TEMPLATE("an exactly vertical shot follows the closed forms of vertica
       CHECK(rel(a->rise, top) <= tol);
       CHECK(a->speed == T(0));
       CHECK(a->distance == T(0));
-      const lob::result<hodograph_point<T>> l = hodograph_crossing(c, g, v, pi_half<T>(), T(0), side::falling);
+      const lob::result<hodograph_point<T>> l =
+          hodograph_crossing(c, g, v, pi_half<T>(), T(0), side::falling);
       REQUIRE(l.has_value());
       CHECK(rel(l->speed, R(vt * tanh(R(G * R(R(l->time) - R(a->time)) / vt)))) <= tol);
       CHECK(l->inclination == -pi_half<T>());
       const T half = T(a->rise / 2);
-      const lob::result<hodograph_point<T>> m = hodograph_crossing(c, g, v, pi_half<T>(), half, side::falling);
+      const lob::result<hodograph_point<T>> m =
+          hodograph_crossing(c, g, v, pi_half<T>(), half, side::falling);
       REQUIRE(m.has_value());
       const R d = R(a->rise) - R(half);
       const R vm = vt * sqrt(R(1 - exp(R(-2 * G * d / (vt * vt)))));
@@ -230,8 +268,8 @@ TEST_CASE_TEMPLATE("an exactly vertical shot follows the closed forms of vertica
   }
 }
 
-TEST_CASE_TEMPLATE("a vertical downward throw follows the closed form of the fall", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("a vertical downward throw follows the closed form of the fall", T, float, double,
+                   long double, mp50) {
   using R = wider<T>;
   using std::atanh;
   using std::exp;
@@ -249,7 +287,8 @@ TEST_CASE_TEMPLATE("a vertical downward throw follows the closed form of the fal
     REQUIRE(a.has_value());
     CHECK(a->time == T(0));
     CHECK(a->speed == v);
-    const lob::result<hodograph_point<T>> l = hodograph_crossing(c, g, v, T(-pi_half<T>()), T(-50), side::falling);
+    const lob::result<hodograph_point<T>> l =
+        hodograph_crossing(c, g, v, T(-pi_half<T>()), T(-50), side::falling);
     REQUIRE(l.has_value());
     const R V(v);
     const R w = sqrt(R(vt * vt - (vt * vt - V * V) * exp(R(-2 * G * 50 / (vt * vt)))));
@@ -260,7 +299,8 @@ TEST_CASE_TEMPLATE("a vertical downward throw follows the closed form of the fal
   }
 }
 
-TEST_CASE_TEMPLATE("a near-vertical shot approaches the vertical closed forms", T, double, long double, mp50) {
+TEST_CASE_TEMPLATE("a near-vertical shot approaches the vertical closed forms", T, double, long double,
+                   mp50) {
   using std::abs;
   using std::sqrt;
   const T g = lob::standard_gravity<T>();
@@ -386,8 +426,8 @@ TEST_CASE_TEMPLATE("the rising crossing comes before the apex and the falling on
   CHECK(start->speed == v);
 }
 
-TEST_CASE_TEMPLATE("a level or downward launch has its apex at the launch point", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("a level or downward launch has its apex at the launch point", T, float, double,
+                   long double, mp50) {
   const T g = lob::standard_gravity<T>();
   const T c = T(1) / T(50), v = T(20);
   for (const T& th : {T(0), lob::deg(T(-30)), lob::deg(T(-80))}) {
@@ -408,12 +448,15 @@ TEST_CASE_TEMPLATE("a level or downward launch has its apex at the launch point"
   }
 }
 
-TEST_CASE_TEMPLATE("bad inputs and unreachable heights are error values", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("bad inputs and unreachable heights are error values", T, float, double, long double,
+                   mp50) {
   const T g = lob::standard_gravity<T>();
   const T c = T(1) / T(100), v = T(30), th = lob::deg(T(45));
   const T nan = std::numeric_limits<T>::quiet_NaN();
   const T inf = std::numeric_limits<T>::infinity();
-  const auto code = [](const lob::result<hodograph_point<T>>& r) { return r ? lob::errc{} : r.error().code(); };
+  const auto code = [](const lob::result<hodograph_point<T>>& r) {
+    return r ? lob::errc{} : r.error().code();
+  };
   for (const T& bad : {T(0), T(-1), nan, inf}) {
     CHECK(code(hodograph_apex(bad, g, v, th)) == lob::errc::invalid_argument);
     CHECK(code(hodograph_apex(c, bad, v, th)) == lob::errc::invalid_argument);
@@ -444,7 +487,8 @@ TEST_CASE("a descent too deep for float is an error, not an overflow") {
   REQUIRE_FALSE(l.has_value());
   CHECK(l.error() == lob::errc::no_convergence);
   // while double goes on (to about 320/c): the fall ends at the terminal speed sqrt(g/c)
-  const lob::result<hodograph_point<double>> d = hodograph_crossing(0.5, 9.80665, 10.0, 0.5, -200.0, side::falling);
+  const lob::result<hodograph_point<double>> d =
+      hodograph_crossing(0.5, 9.80665, 10.0, 0.5, -200.0, side::falling);
   REQUIRE(d.has_value());
   CHECK(d->speed == doctest::Approx(std::sqrt(9.80665 / 0.5)).epsilon(1e-12));
 }
@@ -454,7 +498,8 @@ TEST_CASE("a descent too deep for float is an error, not an overflow") {
 // time. The distance given is rounded to T, and near a steep descent time and height are
 // sensitive to it (dt = dx / u, dy = tan(phi) dx), so each bound carries that condition
 // factor on top of the method's tolerance.
-TEST_CASE_TEMPLATE("the points at a distance and at a time match the mpmath reference", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("the points at a distance and at a time match the mpmath reference", T, float, double,
+                   long double, mp50) {
   using lob::detail::hodograph_at_distance;
   const std::vector<reference_row> rows = reference();
   REQUIRE(!rows.empty());
@@ -504,14 +549,17 @@ TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float,
   using lob::detail::hodograph_at_distance;
   const T g = lob::standard_gravity<T>();
   const T c = T(1) / T(10), v = T(30), th = lob::deg(T(45));
-  const auto code = [](const lob::result<hodograph_point<T>>& r) { return r ? lob::errc{} : r.error().code(); };
+  const auto code = [](const lob::result<hodograph_point<T>>& r) {
+    return r ? lob::errc{} : r.error().code();
+  };
   // Under quadratic drag the descent turns vertical and the horizontal distance tends to a
   // finite limit: along the path length s the horizontal speed is u0 e^(-c s) (du/ds = -c u),
   // so 200 m below the launch (over 20/c of path) less than e^-20 of it is left, and what
   // remains to go is below u e^-20 / (c v) < 1e-7 m.
   const lob::result<hodograph_point<T>> deep = hodograph_crossing(c, g, v, th, T(-200), side::falling);
   REQUIRE(deep.has_value());
-  CHECK(code(hodograph_at_distance(c, g, v, th, T(deep->distance + 1), T(1000000))) == lob::errc::never_reaches);
+  CHECK(code(hodograph_at_distance(c, g, v, th, T(deep->distance + 1), T(1000000))) ==
+        lob::errc::never_reaches);
   // a distance that is reached, but only after max_time
   const lob::result<hodograph_point<T>> far = hodograph_at_distance(c, g, v, th, T(10), T(1000000));
   REQUIRE(far.has_value());
@@ -524,8 +572,9 @@ TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float,
 // Through fly(): the hodograph path's at_distance in 3-D (launch off the origin, any
 // azimuth) against lob's adaptive path at a tight tolerance (a different method: the
 // Dormand-Prince integration of the Cartesian equations).
-TEST_CASE_TEMPLATE("a flight's states at a distance and a time are the same on the fast and the adaptive path", T, double,
-                   long double) {
+TEST_CASE_TEMPLATE(
+    "a flight's states at a distance and a time are the same on the fast and the adaptive path", T, double,
+    long double) {
   const lob::quadratic_drag<T> m{.coefficient = T(1) / T(80)};
   const lob::medium<T> air;
   lob::flight_options<T> slow;

@@ -6,14 +6,13 @@
 /// Used by the integrated flight of `quadratic_drag` when there is no wind.
 
 #include <array>
-#include <cstdint>
-#include <limits>
-#include <type_traits>
-
 #include <boost/math/constants/constants.hpp>
 #include <boost/math/quadrature/gauss.hpp>
 #include <boost/math/special_functions/asinh.hpp>
 #include <boost/math/tools/precision.hpp>
+#include <cstdint>
+#include <limits>
+#include <type_traits>
 
 #include "lob/core/flight_types.hpp"
 #include "lob/core/result.hpp"
@@ -96,8 +95,7 @@ struct hodograph_sums {
   hodograph_sums(const T& t, const T& x, const T& y) : time(t), distance(x), rise(y) {}
   hodograph_sums(const T& z) : time(z), distance(z), rise(z) {}  // NOLINT: Boost writes K r = Real(0)
   template <class A>
-    requires std::is_arithmetic_v<A>
-  hodograph_sums(A z) : hodograph_sums(T(z)) {}  // NOLINT: and r = 0
+  requires std::is_arithmetic_v<A> hodograph_sums(A z) : hodograph_sums(T(z)) {}  // NOLINT: and r = 0
 
   hodograph_sums& operator+=(const hodograph_sums& o) {
     time += o.time;
@@ -128,11 +126,16 @@ template <Real T>
   const T x2 = x * x;
   if constexpr (std::is_floating_point_v<T>) {
     // 1/(2k+1)! for k = 10 down to 0, rounded to T at compile time
-    constexpr T inv[] = {T(1.0L / 51090942171709440000.0L), T(1.0L / 121645100408832000.0L),
-                         T(1.0L / 355687428096000.0L),      T(1.0L / 1307674368000.0L),
-                         T(1.0L / 6227020800.0L),           T(1.0L / 39916800.0L),
-                         T(1.0L / 362880.0L),               T(1.0L / 5040.0L),
-                         T(1.0L / 120.0L),                  T(1.0L / 6.0L),
+    constexpr T inv[] = {T(1.0L / 51090942171709440000.0L),
+                         T(1.0L / 121645100408832000.0L),
+                         T(1.0L / 355687428096000.0L),
+                         T(1.0L / 1307674368000.0L),
+                         T(1.0L / 6227020800.0L),
+                         T(1.0L / 39916800.0L),
+                         T(1.0L / 362880.0L),
+                         T(1.0L / 5040.0L),
+                         T(1.0L / 120.0L),
+                         T(1.0L / 6.0L),
                          T(1)};
     T p = inv[0];
     for (unsigned k = 1; k < sizeof inv / sizeof inv[0]; ++k) p = p * x2 + inv[k];
@@ -305,8 +308,10 @@ class hodograph_path {
       if (paired) {
         const T eh = detail::expm1(hx);  // e^h - 1
         const T ieh = T(1) / (T(1) + eh);
-        fp = rates(with_speed(shape(T(mid + hx), T(e_mid * (T(1) + eh)), T(em + eh + em * eh), T(ie_mid * ieh))));
-        fm = rates(with_speed(shape(T(mid - hx), T(e_mid * ieh), T(T(em - eh) * ieh), T(ie_mid * (T(1) + eh)))));
+        fp = rates(
+            with_speed(shape(T(mid + hx), T(e_mid * (T(1) + eh)), T(em + eh + em * eh), T(ie_mid * ieh))));
+        fm = rates(
+            with_speed(shape(T(mid - hx), T(e_mid * ieh), T(T(em - eh) * ieh), T(ie_mid * (T(1) + eh)))));
       } else {
         fp = rates(T(mid + hx));
         fm = rates(T(mid - hx));
@@ -374,7 +379,8 @@ class hodograph_path {
   // The point where quantity `q` (rise or distance) reaches `level`, searched panel by
   // panel from (a, s) in the direction `dir` (+1: q increases with tau, as the rise does
   // on the ascent and the distance always; -1: the rise on the descent), up to tau = end.
-  [[nodiscard]] result<hodograph_point<T>> search(T a, hodograph_sums<T> s, const T& level, int dir, const T& end,
+  [[nodiscard]] result<hodograph_point<T>> search(T a, hodograph_sums<T> s, const T& level, int dir,
+                                                  const T& end,
                                                   T hodograph_sums<T>::*q = &hodograph_sums<T>::rise) const {
     node_rates nodes;
     for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
@@ -453,8 +459,10 @@ class hodograph_path {
       T slope;
       const T f = eval(z, slope);
       if (f == T(0)) break;
-      if (f < T(0)) lo = z;
-      else hi = z;
+      if (f < T(0))
+        lo = z;
+      else
+        hi = z;
       T next = (lo + hi) / 2;
       if (slope > T(0)) {
         const T newton = z - f / slope;
@@ -501,8 +509,10 @@ class hodograph_path {
     for (int i = 0; i < 100; ++i) {
       const T f = T(dir) * T(s.*q - level);  // increasing in tau on [lo, hi]
       if (f == T(0)) return finish(tau, s, r, level, q);
-      if (f < T(0)) lo = tau;
-      else hi = tau;
+      if (f < T(0))
+        lo = tau;
+      else
+        hi = tau;
       const T slope = T(dir) * T(r.*q / g_);
       T next = (lo + hi) / 2;
       if (slope > T(0)) {
@@ -537,9 +547,12 @@ class hodograph_path {
                                           const T& level, T hodograph_sums<T>::*q) const {
     using std::atan;
     hodograph_point<T> p{s.time, s.distance, s.rise, r.time, T(atan(T(r.rise / r.distance)))};
-    if (q == &hodograph_sums<T>::rise) p.rise = level;
-    else if (q == &hodograph_sums<T>::distance) p.distance = level;
-    else p.time = level;
+    if (q == &hodograph_sums<T>::rise)
+      p.rise = level;
+    else if (q == &hodograph_sums<T>::distance)
+      p.distance = level;
+    else
+      p.time = level;
     return p;
   }
 
@@ -571,8 +584,8 @@ template <Real T>
 [[nodiscard]] vertical_drop<T> vertical_fall(const T& c, const T& g, const T& w0, const T& d) {
   using std::sqrt;
   const T vt = sqrt(T(g / c));
-  const T lambda = 2 * c * d;                // 2 g d / vt^2
-  const T k0 = T(w0 / vt) * T(w0 / vt);      // (w0/vt)^2
+  const T lambda = 2 * c * d;                               // 2 g d / vt^2
+  const T k0 = T(w0 / vt) * T(w0 / vt);                     // (w0/vt)^2
   const T gain = -(T(1) - k0) * detail::expm1(T(-lambda));  // (w^2 - w0^2) / vt^2
   const T w = vt * sqrt(T(k0 + gain));
   const T dw = T(gain * vt * vt) / T(w + w0);  // w - w0
@@ -645,9 +658,11 @@ template <Real T>
 /// double, 9e-7 in float, 5e-25 in 50 digits (the table's own limit).
 /// Errors: `invalid_argument` for bad inputs; `no_convergence` if a loop hits its cap.
 template <Real T>
-[[nodiscard]] result<hodograph_point<T>> hodograph_apex(const T& c, const T& g, const T& v0, const T& theta0) {
+[[nodiscard]] result<hodograph_point<T>> hodograph_apex(const T& c, const T& g, const T& v0,
+                                                        const T& theta0) {
   if (const status ok = hodograph_check(c, g, v0, theta0); !ok) return unexpected<error>(ok.error());
-  if (hodograph_vertical(theta0)) return vertical_crossing(c, g, v0, theta0 > T(0), T(0), side::falling, true);
+  if (hodograph_vertical(theta0))
+    return vertical_crossing(c, g, v0, theta0 > T(0), T(0), side::falling, true);
   const hodograph_path<T> path(c, g, v0, theta0);
   if (!(path.sigma0() > T(0))) return path.launch_point();
   const result<hodograph_sums<T>> s = path.ascent();
@@ -663,8 +678,8 @@ template <Real T>
 /// or below the launch on the rising branch; `no_convergence` if an iteration hits its cap
 /// (or the descent is so long that e^(2 tau) would overflow T).
 template <Real T>
-[[nodiscard]] result<hodograph_point<T>> hodograph_crossing(const T& c, const T& g, const T& v0, const T& theta0,
-                                                            const T& rise, side branch) {
+[[nodiscard]] result<hodograph_point<T>> hodograph_crossing(const T& c, const T& g, const T& v0,
+                                                            const T& theta0, const T& rise, side branch) {
   if (const status ok = hodograph_check(c, g, v0, theta0); !ok) return unexpected<error>(ok.error());
   if (!is_finite(rise)) return fail(errc::invalid_argument, "height must be finite", rise);
   if (hodograph_vertical(theta0)) return vertical_crossing(c, g, v0, theta0 > T(0), rise, branch, false);
@@ -697,7 +712,8 @@ template <Real T>
 template <Real T>
 [[nodiscard]] result<hodograph_point<T>> hodograph_search_growing(const T& c, const T& g, const T& v0,
                                                                   const T& theta0, const T& level,
-                                                                  T hodograph_sums<T>::*q, const T& max_time) {
+                                                                  T hodograph_sums<T>::*q,
+                                                                  const T& max_time) {
   using path_t = hodograph_path<T>;
   const path_t path(c, g, v0, theta0);
   typename path_t::node_rates nodes;
@@ -709,10 +725,12 @@ template <Real T>
     const hodograph_sums<T> sb = s + path.integral(a, b, &nodes, q);
     if (sb.*q >= level) {
       const result<hodograph_point<T>> p = path.polish(a, s, b, sb, nodes, level, +1, q);
-      if (p && p->time > max_time) return fail(errc::time_limit, "the point is reached after max_time, at t =", p->time);
+      if (p && p->time > max_time)
+        return fail(errc::time_limit, "the point is reached after max_time, at t =", p->time);
       return p;
     }
-    if (sb.time > max_time) return fail(errc::time_limit, "the point is not reached within max_time =", max_time);
+    if (sb.time > max_time)
+      return fail(errc::time_limit, "the point is not reached within max_time =", max_time);
     // Deep in the descent (inclination below -84 degrees, sigma < -3) the distance gained
     // per panel of width w shrinks like e^-w, so all that is left is about e^-w / (1 - e^-w)
     // of the last gain (0.16 of it for w = 2); a gap of more than twice the last gain is
@@ -735,8 +753,9 @@ template <Real T>
 /// distance beyond the horizontal asymptote of the descent; `time_limit` when the distance
 /// is reached only after `max_time`; `no_convergence` if an iteration hits its cap.
 template <Real T>
-[[nodiscard]] result<hodograph_point<T>> hodograph_at_distance(const T& c, const T& g, const T& v0, const T& theta0,
-                                                               const T& distance, const T& max_time) {
+[[nodiscard]] result<hodograph_point<T>> hodograph_at_distance(const T& c, const T& g, const T& v0,
+                                                               const T& theta0, const T& distance,
+                                                               const T& max_time) {
   if (const status ok = hodograph_check(c, g, v0, theta0); !ok) return unexpected<error>(ok.error());
   if (!is_finite(distance) || !(distance > T(0)))
     return fail(errc::invalid_argument, "distance must be finite and > 0", distance);
@@ -751,8 +770,8 @@ template <Real T>
 /// Errors: `invalid_argument` for bad inputs or a vertical launch; `no_convergence` if an
 /// iteration hits its cap (or the descent is too deep for T).
 template <Real T>
-[[nodiscard]] result<hodograph_point<T>> hodograph_at_time(const T& c, const T& g, const T& v0, const T& theta0,
-                                                           const T& t) {
+[[nodiscard]] result<hodograph_point<T>> hodograph_at_time(const T& c, const T& g, const T& v0,
+                                                           const T& theta0, const T& t) {
   if (const status ok = hodograph_check(c, g, v0, theta0); !ok) return unexpected<error>(ok.error());
   if (!is_finite(t) || !(t > T(0))) return fail(errc::invalid_argument, "time must be finite and > 0", t);
   if (hodograph_vertical(theta0))

@@ -5,6 +5,8 @@
 /// through the target) and `least_speed()` (the smallest speed that reaches the target).
 /// Written once on `fly()`; vacuum and linear drag use an exact reduction to one unknown.
 
+#include <array>
+#include <cstddef>
 #include <optional>
 
 #include "lob/solve/farthest.hpp"
@@ -414,7 +416,7 @@ struct shooter {
     const vec3<T> d = to - from;
     const vec3<T> lv = d - T(f.up.dot(d)) * f.up;
     return shooter{m, a, f, o, from, to, lv, T(sqrt(T(lv.squaredNorm()))), T(f.up.dot(d)), f.azimuth_of(lv),
-                   o.flight};
+                   o.flight, {}, 0};
   }
 
   // Caps the flight time of trial shots at `speed`: four times the time a vertical shot
@@ -432,7 +434,27 @@ struct shooter {
     if (cap < probe_options.max_time) probe_options.max_time = cap;
   }
 
+  // The closest trial of each root search (slot 0: flat, 1: lofted), kept: a root
+  // finder's answer is such a trial, and the caller then asks for it again (its state
+  // and drift).
+  struct trial {
+    T elevation, azimuth, speed;
+    probe_result<T> result;
+  };
+  mutable std::array<std::optional<trial>, 2> kept{};
+  mutable std::size_t slot = 0;
+
   [[nodiscard]] probe_result<T> probe(const T& elevation, const T& azimuth, const T& speed) const {
+    using std::abs;
+    for (const std::optional<trial>& k : kept)
+      if (k && k->elevation == elevation && k->azimuth == azimuth && k->speed == speed) return k->result;
+    const probe_result<T> p = fresh_probe(elevation, azimuth, speed);
+    std::optional<trial>& k = kept[slot];
+    if (p.reached && (!k || abs(p.miss) <= abs(k->result.miss))) k = trial{elevation, azimuth, speed, p};
+    return p;
+  }
+
+  [[nodiscard]] probe_result<T> fresh_probe(const T& elevation, const T& azimuth, const T& speed) const {
     probe_result<T> p;
     p.velocity = vec3<T>(speed * frame.direction(elevation, azimuth));
     const auto flight = fly(model, air, shot<T>{launch, p.velocity}, probe_options);
@@ -534,9 +556,11 @@ template <DragModel M, Real T = scalar_of<M>>
           g1 = atan(T(pm + lo_u));
           g2 = atan(T(pm + hi_u));
         }
+        sh.slot = 0;
         const result<T> r1 = secant_in_bracket(miss, a, mid, f_a, f_mid, g1, tol, bits, sh.opts.max_iterations,
                                                "aim: flat root did not converge");
         if (!r1) return unexpected<error>(r1.error());
+        sh.slot = 1;
         const result<T> r2 = secant_in_bracket(miss, mid, b, f_mid, f_b, g2, tol, bits, sh.opts.max_iterations,
                                                "aim: lofted root did not converge");
         if (!r2) return unexpected<error>(r2.error());
@@ -773,7 +797,8 @@ template <DragModel M, Real T = scalar_of<M>>
     if (coarse.probe_options.absolute_tolerance < loose) coarse.probe_options.absolute_tolerance = loose;
     coarse_bits = 20;  // the loose flights are good to ~1e-6 only
   }
-  const result<plane_roots<T>> first = plane_solve(coarse, sh.bearing, req.speed, tol, coarse_bits);
+  const result<plane_roots<T>> first =
+      plane_solve(exact_probes ? sh : coarse, sh.bearing, req.speed, tol, coarse_bits);
   if (!first) return unexpected<error>(first.error());
   if (!first->flat && !first->lofted) {
     return unexpected<error>(out_of_reach_error(model, air, req, sh.bearing, o));
