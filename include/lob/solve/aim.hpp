@@ -248,7 +248,9 @@ template <Real T>
 // there, as a plain safeguarded Newton would, costs up to one evaluation per bit of the
 // still wide bracket and gains nothing). A small step whose successor, extrapolated as if
 // the convergence were only quadratic (step^3 / last^2, an overestimate for Halley's),
-// falls below an ulp is taken without evaluating F again.
+// falls below an ulp is taken without evaluating F again. Hand-written rather than
+// boost::math::tools::halley_iterate, which re-evaluates the start and, when two steps
+// stop shrinking (as at the rounding floor), jumps half-way to a bracket end.
 template <Real T>
 [[nodiscard]] result<T> meeting_time(const time_form<T>& f, const T& u2, T lo, T hi, bool lo_positive, T t,
                                      typename time_form<T>::derivs v, std::uintmax_t max_iter) {
