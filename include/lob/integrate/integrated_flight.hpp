@@ -44,8 +44,8 @@ namespace lob {
 /// with `fixed_step` and are reproducible bit for bit; their events are located on a
 /// cubic Hermite interpolant between steps.
 ///
-/// Models with `model_traits<M>::quadratic_fast_path` (quadratic drag) answer `at()`
-/// (but for a vertical launch), `apex()`, `crossing()`, `landing()`, `range()` and
+/// Models with `model_traits<M>::quadratic_fast_path` (quadratic drag) answer `apex()`,
+/// `crossing()`, `landing()`, `range()` and (but for a vertical launch) `at()` and
 /// `at_distance()` in still air through the hodograph quadrature
 /// of integrate/hodograph.hpp when the adaptive method is chosen and
 /// `flight_options::use_fast_paths` is set.
@@ -193,14 +193,13 @@ class integrated_flight {
   /// The first state whose horizontal distance from the launch point reaches `distance`
   /// [m] (the flight continues below the landing plane). Errors: `invalid_argument` for a
   /// negative or non-finite distance; `time_limit` when it is not reached by max_time;
-  /// `step_limit`; on the hodograph path also `never_reaches` for a vertical shot or a
-  /// distance beyond the horizontal asymptote of the descent.
+  /// `step_limit`.
   [[nodiscard]] result<state<T>> at_distance(const T& distance) const {
     if (!is_finite(distance) || distance < T(0))
       return fail(errc::invalid_argument, "distance must be finite and >= 0", distance);
     if (distance == T(0)) return make_state(T(0), y0_);
     if constexpr (model_traits<M>::quadratic_fast_path) {
-      if (fast_) return fast_at_distance(distance);
+      if (fast_ && !detail::hodograph_vertical(theta0_)) return fast_at_distance(distance);
     }
     result<state<T>> out = fail(errc::no_convergence, "distance was not reached");
     const status walked = walk([&](const auto& p) {
