@@ -356,7 +356,13 @@ TEST_CASE_TEMPLATE("a vanishing drag gives the vacuum flight", T, float, double,
   const T tol = T(1) / T(1000000) + 64 * std::numeric_limits<T>::epsilon();
   CHECK(abs(T(l->distance / (v * v * sin(T(2 * th)) / g) - 1)) <= tol);
   CHECK(abs(T(l->time / (2 * v * sin(th) / g) - 1)) <= tol);
-  CHECK(l->distance < v * v * sin(T(2 * th)) / g);  // drag never lengthens the range
+  // Drag never lengthens the range. Here it shortens it by about 1e-7 relative, which
+  // float (epsilon 1.2e-7) cannot resolve: there the range may round to the vacuum value.
+  const T vacuum_range = v * v * sin(T(2 * th)) / g;
+  if (std::numeric_limits<T>::digits > 24)
+    CHECK(l->distance < vacuum_range);
+  else
+    CHECK(l->distance <= vacuum_range * (1 + 4 * std::numeric_limits<T>::epsilon()));
 }
 
 TEST_CASE("the descent takes longer than the ascent (common practice)") {

@@ -10,6 +10,7 @@
 #include <boost/math/quadrature/gauss.hpp>
 #include <boost/math/special_functions/asinh.hpp>
 #include <boost/math/tools/precision.hpp>
+#include <Eigen/Core>
 #include <cstdint>
 #include <limits>
 #include <type_traits>
@@ -118,6 +119,22 @@ struct hodograph_sums {
   }
 };
 
+/// 1/(2k+1)! for k = 10 down to 0, rounded to T: the Taylor coefficients of sinh(x)/x in x^2.
+template <Real T>
+[[nodiscard]] constexpr std::array<T, 11> sinh_small_coefficients() {
+  return {T(1.0L / 51090942171709440000.0L),
+          T(1.0L / 121645100408832000.0L),
+          T(1.0L / 355687428096000.0L),
+          T(1.0L / 1307674368000.0L),
+          T(1.0L / 6227020800.0L),
+          T(1.0L / 39916800.0L),
+          T(1.0L / 362880.0L),
+          T(1.0L / 5040.0L),
+          T(1.0L / 120.0L),
+          T(1.0L / 6.0L),
+          T(1)};
+}
+
 /// sinh(x) for |x| < 1/2 by its Taylor series (relative accuracy near 0 without a call):
 /// for built-in types a fixed Horner polynomial to x^21 (the next term is below 1e-27
 /// relative), for wider types the series summed until its terms fall below epsilon.
@@ -125,20 +142,9 @@ template <Real T>
 [[nodiscard]] T sinh_small(const T& x) {
   const T x2 = x * x;
   if constexpr (std::is_floating_point_v<T>) {
-    // 1/(2k+1)! for k = 10 down to 0, rounded to T at compile time
-    constexpr T inv[] = {T(1.0L / 51090942171709440000.0L),
-                         T(1.0L / 121645100408832000.0L),
-                         T(1.0L / 355687428096000.0L),
-                         T(1.0L / 1307674368000.0L),
-                         T(1.0L / 6227020800.0L),
-                         T(1.0L / 39916800.0L),
-                         T(1.0L / 362880.0L),
-                         T(1.0L / 5040.0L),
-                         T(1.0L / 120.0L),
-                         T(1.0L / 6.0L),
-                         T(1)};
+    constexpr std::array<T, 11> inv = sinh_small_coefficients<T>();
     T p = inv[0];
-    for (unsigned k = 1; k < sizeof inv / sizeof inv[0]; ++k) p = p * x2 + inv[k];
+    for (std::size_t k = 1; k < inv.size(); ++k) p = p * x2 + inv[k];
     return p * x;
   } else {
     using std::abs;
@@ -152,6 +158,62 @@ template <Real T>
     }
     return sum;
   }
+}
+
+/// sinh_small of each element of an Eigen array (built-in types: Horner's rule on whole
+/// arrays, so that it vectorises).
+template <Real T, int M>
+[[nodiscard]] Eigen::Array<T, M, 1> sinh_small(const Eigen::Array<T, M, 1>& x) {
+  if constexpr (std::is_floating_point_v<T>) {
+    constexpr std::array<T, 11> inv = sinh_small_coefficients<T>();
+    const Eigen::Array<T, M, 1> x2 = x.square();
+    Eigen::Array<T, M, 1> p = Eigen::Array<T, M, 1>::Constant(inv[0]);
+    for (std::size_t k = 1; k < inv.size(); ++k) p = p * x2 + inv[k];
+    return p * x;
+  } else {
+    return x.unaryExpr([](const T& z) { return sinh_small(z); });
+  }
+}
+
+/// e^x - 1 for each x in [0, 1] of an Eigen array of a built-in type, by the Taylor series
+/// x sum x^j/(j+1)! to the term x^m/m! after which the rest is below half an ulp at x = 1
+/// (float m = 10, double 18, long double 20). Relative-accurate near 0 like expm1 and,
+/// being Horner's rule on whole arrays, vectorised where calls to expm1 would not be.
+template <Real T, int M>
+requires std::is_floating_point_v<T>
+[[nodiscard]] Eigen::Array<T, M, 1> expm1_unit(const Eigen::Array<T, M, 1>& x) {
+  constexpr int digits = std::numeric_limits<T>::digits;
+  constexpr std::size_t m = digits <= 24 ? 10 : digits <= 53 ? 18 : 20;
+  // 1/(j+1)! for j = 19 down to 0
+  constexpr long double inv[] = {1.0L / 2432902008176640000.0L,
+                                 1.0L / 121645100408832000.0L,
+                                 1.0L / 6402373705728000.0L,
+                                 1.0L / 355687428096000.0L,
+                                 1.0L / 20922789888000.0L,
+                                 1.0L / 1307674368000.0L,
+                                 1.0L / 87178291200.0L,
+                                 1.0L / 6227020800.0L,
+                                 1.0L / 479001600.0L,
+                                 1.0L / 39916800.0L,
+                                 1.0L / 3628800.0L,
+                                 1.0L / 362880.0L,
+                                 1.0L / 40320.0L,
+                                 1.0L / 5040.0L,
+                                 1.0L / 720.0L,
+                                 1.0L / 120.0L,
+                                 1.0L / 24.0L,
+                                 1.0L / 6.0L,
+                                 1.0L / 2.0L,
+                                 1.0L};
+  constexpr std::size_t first = 20 - m;  // inv[first] = 1/m!
+  constexpr std::array<T, m> c = [&] {
+    std::array<T, m> r{};
+    for (std::size_t k = 0; k < m; ++k) r[k] = T(inv[first + k]);
+    return r;
+  }();
+  Eigen::Array<T, M, 1> p = Eigen::Array<T, M, 1>::Constant(c[0]);
+  for (std::size_t k = 1; k < m; ++k) p = p * x + c[k];
+  return p * x;
 }
 
 /// The three-term recurrence of the Legendre polynomials, P_k+1 = alpha_k x P_k - beta_k P_k-1,
@@ -181,6 +243,52 @@ template <Real T, unsigned N>
     return table;
   } else {
     return make_legendre_table<T, N>();
+  }
+}
+
+/// The discrete Legendre transform of an N-point Gauss rule: the coefficients of the
+/// degree N-1 interpolant through values at the nodes +-x_i (x_i >= 0) are
+/// c_k = sum_i w_i P_k(x_i) (2k+1)/2 (f(x_i) + (-1)^k f(-x_i)) (discrete orthogonality).
+/// Rows of even and of odd k apart, applied to the even and the odd parts of the values.
+template <Real T, unsigned N>
+struct legendre_transform {
+  static constexpr int half = int(N + 1) / 2;
+  Eigen::Matrix<T, int(N + 1) / 2, half> even;
+  Eigen::Matrix<T, int(N) / 2, half> odd;
+};
+
+template <Real T, unsigned N>
+[[nodiscard]] legendre_transform<T, N> make_legendre_transform() {
+  using gauss = boost::math::quadrature::gauss<T, N, no_throw_policy>;
+  const auto& x = gauss::abscissa();
+  const auto& w = gauss::weights();
+  legendre_transform<T, N> t;
+  for (int i = 0; i < legendre_transform<T, N>::half; ++i) {
+    T p_prev(0);
+    T p(1);
+    for (unsigned k = 0; k < N; ++k) {
+      const T m = T(w[i] * p * T(2 * k + 1) / 2);
+      if (k & 1u)
+        t.odd(int(k / 2), i) = m;
+      else
+        t.even(int(k / 2), i) = m;
+      const T next = (T(2 * k + 1) * x[i] * p - T(k) * p_prev) / T(k + 1);
+      p_prev = p;
+      p = next;
+    }
+  }
+  return t;
+}
+
+// Built once per rule for built-in types (a constant table, set up on first use); wider
+// types build it per call (returned by value), as their Gauss rules are.
+template <Real T, unsigned N>
+[[nodiscard]] decltype(auto) legendre_transform_table() {
+  if constexpr (std::is_floating_point_v<T>) {
+    static const legendre_transform<T, N> table = make_legendre_transform<T, N>();
+    return static_cast<const legendre_transform<T, N>&>(table);
+  } else {
+    return make_legendre_transform<T, N>();
   }
 }
 
@@ -278,51 +386,84 @@ class hodograph_path {
   };
 
   // (t, x, y) gained from tau = a to tau = b, by the N-point Gauss–Legendre rule (Boost's
-  // tabulated nodes and weights); the rates of quantity `q` (rise or distance) at the
-  // nodes are kept in `keep`. Away from the launch the nodes come in pairs mid +- h, whose exponentials are
-  // e^mid e^+-h: one expm1 per pair instead of one exponential per node. e^tau - 1 is
-  // then a sum of non-negative terms at mid + h and a difference at mid - h, which loses
-  // digits as mid - h nears 0, so a panel that starts closer to 0 than its own width
-  // evaluates every node alone.
+  // tabulated nodes and weights); the rates of quantity `q` (rise, distance or time) at
+  // the nodes are kept in `keep`. All nodes are evaluated together in Eigen arrays, whose
+  // arithmetic and square roots vectorise for built-in types. Away from the launch the
+  // nodes come in pairs mid +- h, whose exponentials are e^mid e^+-h: one e^h - 1 per
+  // pair. e^tau - 1 is then a sum of non-negative terms at mid + h and a difference at
+  // mid - h, which loses digits as mid - h nears 0, so a panel that starts closer to 0
+  // than its own width takes e^tau - 1 at every node.
   [[nodiscard]] hodograph_sums<T> integral(const T& a, const T& b, node_rates* keep = nullptr,
                                            T hodograph_sums<T>::*q = &hodograph_sums<T>::rise) const {
+    using nodes = Eigen::Array<T, int(2 * half_points), 1>;
+    using halves = Eigen::Array<T, int(half_points), 1>;
     const T mid = (a + b) / 2;
     const T half = (b - a) / 2;
     const auto& x = gauss::abscissa();
     const auto& w = gauss::weights();
-    const bool paired = a >= b - a;
-    const T em = paired ? T(detail::expm1(mid)) : T(0);  // e^mid - 1
-    const T e_mid = T(1) + em;
-    const T ie_mid = T(1) / e_mid;
-    hodograph_sums<T> s(T(0));
-    for (unsigned i = 0; i < half_points; ++i) {
-      if (i == 0 && (points & 1u)) {
-        const hodograph_sums<T> f = rates(paired ? with_speed(shape(mid, e_mid, em, ie_mid)) : at(mid));
-        s += f * w[0];
-        if (keep) keep->plus[0] = keep->minus[0] = f.*q;
-        continue;
-      }
-      const T hx = half * x[i];
-      hodograph_sums<T> fp;
-      hodograph_sums<T> fm;
-      if (paired) {
-        const T eh = detail::expm1(hx);  // e^h - 1
-        const T ieh = T(1) / (T(1) + eh);
-        fp = rates(
-            with_speed(shape(T(mid + hx), T(e_mid * (T(1) + eh)), T(em + eh + em * eh), T(ie_mid * ieh))));
-        fm = rates(
-            with_speed(shape(T(mid - hx), T(e_mid * ieh), T(T(em - eh) * ieh), T(ie_mid * (T(1) + eh)))));
-      } else {
-        fp = rates(T(mid + hx));
-        fm = rates(T(mid - hx));
-      }
-      s += (fp + fm) * w[i];
-      if (keep) {
-        keep->plus[i] = fp.*q;
-        keep->minus[i] = fm.*q;
+    // Nodes 0..half_points-1 at mid + h_i, the rest at mid - h_i (h_i = half x_i; the
+    // centre node of an odd rule appears twice, with half its weight each time).
+    const halves h = half * Eigen::Map<const halves>(x.data());
+    nodes tau;
+    tau << mid + h, mid - h;
+    nodes et;   // e^tau
+    nodes emt;  // e^tau - 1
+    nodes iet;  // e^-tau
+    if (a >= b - a) {
+      // e^(mid +- h) = e^mid e^+-h: one e^h - 1 per pair.
+      const T em = detail::expm1(mid);
+      const T e_mid = T(1) + em;
+      const T ie_mid = T(1) / e_mid;
+      const halves eh = expm1_all(h);  // e^h - 1
+      const halves ieh = T(1) / (T(1) + eh);
+      et << e_mid * (T(1) + eh), e_mid * ieh;
+      emt << em + eh + em * eh, (em - eh) * ieh;
+      iet << ie_mid * ieh, ie_mid * (T(1) + eh);
+    } else {
+      emt = expm1_all(tau);
+      et = T(1) + emt;
+      iet = T(1) / et;
+    }
+    const nodes es = e0_ * iet;   // e^sigma
+    const nodes ies = et * ie0_;  // e^-sigma
+    const nodes sigma = sigma0_ - tau;
+    const nodes sinh_tau = (emt + emt * iet) / 2;
+    const nodes cosh_sum = (e0_ * es + ie0_ * ies) / 2;  // cosh(sigma0 + sigma)
+    const nodes one_plus_d = T(1) + kc_ * (cosh_sum * sinh_tau + tau);
+    const nodes u = u0_ / one_plus_d.sqrt();
+    // Near the apex sinh(sigma) from its series, where (e - 1/e)/2 would cancel.
+    const nodes sinh_sigma = (sigma.square() < T(1) / T(4)).select(sinh_small(sigma), (es - ies) / 2);
+    const nodes rt = u * (es + ies) / 2;  // g dt/dtau = v
+    const nodes rx = u * rt;
+    const nodes ry = rx * sinh_sigma;
+    halves wh = Eigen::Map<const halves>(w.data());
+    if (points & 1u) wh(0) /= 2;
+    const hodograph_sums<T> s(T((wh * (rt.head(half_points) + rt.tail(half_points))).sum()),
+                              T((wh * (rx.head(half_points) + rx.tail(half_points))).sum()),
+                              T((wh * (ry.head(half_points) + ry.tail(half_points))).sum()));
+    if (keep) {
+      const nodes& r = q == &hodograph_sums<T>::rise ? ry : q == &hodograph_sums<T>::distance ? rx : rt;
+      for (unsigned i = 0; i < half_points; ++i) {
+        keep->plus[i] = r(i);
+        keep->minus[i] = r(half_points + i);
       }
     }
     return s * T(half / g_);
+  }
+
+  // e^z - 1 for each node offset z >= 0: the series where every z <= 1 in a built-in type,
+  // else one expm1 (or exp) each.
+  template <int M>
+  [[nodiscard]] static Eigen::Array<T, M, 1> expm1_all(const Eigen::Array<T, M, 1>& z) {
+    if constexpr (std::is_floating_point_v<T>) {
+      if (z.maxCoeff() <= T(1)) return expm1_unit(z);
+      if (z.maxCoeff() <= T(2)) {
+        // e^z - 1 = e2 (2 + e2) with e2 = e^(z/2) - 1: relative-accurate, no cancellation.
+        const Eigen::Array<T, M, 1> e2 = expm1_unit(Eigen::Array<T, M, 1>(z / 2));
+        return e2 * (T(2) + e2);
+      }
+    }
+    return z.unaryExpr([](const T& y) { return T(detail::expm1(y)); });
   }
 
   // The same with Boost's short rule, for Newton corrections of at most 1/1000 of a panel.
@@ -404,36 +545,23 @@ class hodograph_path {
   [[nodiscard]] T interpolated_root(const T& a, const T& b, const T& qa, const T& qb, const node_rates& nodes,
                                     const T& level, int dir) const {
     using std::abs;
-    const auto& x = gauss::abscissa();
-    const auto& w = gauss::weights();
     const legendre_table<T, points> lt = legendre_constants<T, points>();
-    // Even and odd parts of the node pairs, weighted (P_k(-x) = (-1)^k P_k(x)); the
-    // recurrence runs over k outside and the nodes inside, so that the nodes pipeline.
-    std::array<T, half_points> even;
-    std::array<T, half_points> odd;
-    std::array<T, half_points> p_prev;
-    std::array<T, half_points> p;
+    // Even and odd parts of the node pairs (P_k(-x) = (-1)^k P_k(x)), then the Legendre
+    // coefficients of the rate by the discrete transform.
+    using halves = Eigen::Matrix<T, int(half_points), 1>;
+    halves even;
+    halves odd;
     for (unsigned i = 0; i < half_points; ++i) {
       const bool centre = i == 0 && (points & 1u);
-      even[i] = centre ? T(w[i] * nodes.plus[i]) : T(w[i] * T(nodes.plus[i] + nodes.minus[i]));
-      odd[i] = centre ? T(0) : T(w[i] * T(nodes.plus[i] - nodes.minus[i]));
-      p_prev[i] = T(0);
-      p[i] = T(1);
+      even(i) = centre ? nodes.plus[i] : T(nodes.plus[i] + nodes.minus[i]);
+      odd(i) = centre ? T(0) : T(nodes.plus[i] - nodes.minus[i]);
     }
-    std::array<T, points> coef;
-    for (unsigned k = 0; k < points; ++k) {
-      const std::array<T, half_points>& part = (k & 1u) ? odd : even;
-      T sum(0);
-      for (unsigned i = 0; i < half_points; ++i) sum += part[i] * p[i];
-      coef[k] = sum;
-      for (unsigned i = 0; i < half_points; ++i) {
-        const T next = lt.alpha[k] * x[i] * p[i] - lt.beta[k] * p_prev[i];
-        p_prev[i] = p[i];
-        p[i] = next;
-      }
-    }
+    const auto& lm = legendre_transform_table<T, points>();
     const T scale = (b - a) / 2 / g_;
-    for (unsigned k = 0; k < points; ++k) coef[k] *= scale / (lt.inv_odd[k] * 2);
+    const Eigen::Matrix<T, int(points + 1) / 2, 1> ce = lm.even * even;
+    const Eigen::Matrix<T, int(points) / 2, 1> co = lm.odd * odd;
+    std::array<T, points> coef;
+    for (unsigned k = 0; k < points; ++k) coef[k] = scale * ((k & 1u) ? co(int(k / 2)) : ce(int(k / 2)));
     // F(z) = dir (q(z) - level) and F'(z), increasing from F(-1) < 0 to F(1) >= 0.
     const auto eval = [&](const T& z, T& slope) {
       T p_prev(1);
@@ -454,7 +582,12 @@ class hodograph_path {
     T hi(1);
     T z = T(-1) + 2 * T((level - qa) / (qb - qa));
     if (!(z > lo && z < hi)) z = T(0);
+    // A Newton step below 2^(-digits/3) leaves an error of order its square, which is
+    // below the interpolation error of the panel: the true Newton step of polish()
+    // finishes from there, so the iteration stops after it.
+    using std::ldexp;
     const T eps = epsilon<T>();
+    const T enough = ldexp(T(1), -std::numeric_limits<T>::digits / 3);
     for (int i = 0; i < 60; ++i) {
       T slope;
       const T f = eval(z, slope);
@@ -464,13 +597,17 @@ class hodograph_path {
       else
         hi = z;
       T next = (lo + hi) / 2;
+      bool newton_step = false;
       if (slope > T(0)) {
         const T newton = z - f / slope;
-        if (newton > lo && newton < hi) next = newton;
+        if (newton > lo && newton < hi) {
+          next = newton;
+          newton_step = true;
+        }
       }
       const T step = abs(T(next - z));
       z = next;
-      if (step <= 4 * eps || !(hi - lo > 4 * eps)) break;
+      if ((newton_step && step <= enough) || step <= 4 * eps || !(hi - lo > 4 * eps)) break;
     }
     return T((a + b) / 2 + (b - a) / 2 * z);
   }
