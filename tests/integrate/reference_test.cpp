@@ -216,21 +216,40 @@ TEST_CASE_TEMPLATE("fixed-step flights land with the order of their method", T, 
   }
 }
 
-TEST_CASE("the step-size controller's logarithm and power agree with the C library to 1e-2 and 5e-3") {
-  // Reference: std::log2 and std::exp2 in double (the C library, correctly rounded to
-  // within an ulp or so), far more accurate than the interpolants (bounds 0.023, 0.0054).
-  double worst_log = 0;
+TEST_CASE("the step-size controller's logarithm, power and factor stay within their stated bounds") {
+  // Reference: std::log2, std::exp2 and std::pow in double (the C library, correctly
+  // rounded to within an ulp or so), far more accurate than Mitchell's maps (log2 at most
+  // 0.0861 below, exp2 at most 6.2 % above) and the factor composed from them (within
+  // 3.7 % of the exact proportional-integral factor once centred).
+  double low_log = 0, high_log = 0;
   for (double x = 1e-9; x < 1e9; x *= 1.01) {
-    const double got = lob::detail::approx::log2(static_cast<float>(x));
-    worst_log = std::max(worst_log, std::fabs(got - std::log2(static_cast<double>(static_cast<float>(x)))));
+    const double d = lob::detail::approx::log2(x) - std::log2(x);
+    low_log = std::min(low_log, d);
+    high_log = std::max(high_log, d);
   }
-  double worst_exp = 0;
+  double low_exp = 0, high_exp = 0;
   for (int i = -3000; i <= 4000; ++i) {
-    const float x = static_cast<float>(i) / 1000.0f;
-    const double got = lob::detail::approx::exp2(x);
-    worst_exp = std::max(worst_exp, std::fabs(got / std::exp2(static_cast<double>(x)) - 1));
+    const double y = static_cast<double>(i) / 1000.0;
+    const double r = lob::detail::approx::exp2(y) / std::exp2(y) - 1;
+    low_exp = std::min(low_exp, r);
+    high_exp = std::max(high_exp, r);
   }
-  INFO("worst |log2 error| ", worst_log, ", worst relative exp2 error ", worst_exp);
-  CHECK(worst_log < 1e-2);
-  CHECK(worst_exp < 5e-3);
+  // The first accepted step: h_new / h = 0.9 err^-0.17 (1e-4)^0.04 (err_old = 1e-4 at the
+  // start, Hairer), clamped to [1/5, 10]; a rejection: 0.9 err^-0.2, clamped to [1/5, 1].
+  double worst_factor = 0;
+  for (double err = 1e-9; err < 1e3; err *= 1.003) {
+    lob::detail::pi_controller<double> accept, reject;
+    const double fa = accept.next(1.0, err, true);
+    const double fr = reject.next(1.0, err, false);
+    const double ea = std::clamp(0.9 * std::pow(err, -0.17) * std::pow(1e-4, 0.04), 0.2, 10.0);
+    const double er = std::clamp(0.9 * std::pow(err, -0.2), 0.2, 1.0);
+    worst_factor = std::max({worst_factor, std::fabs(fa / ea - 1), std::fabs(fr / er - 1)});
+  }
+  INFO("log2 error in [", low_log, ", ", high_log, "], exp2 relative error in [", low_exp, ", ", high_exp,
+       "], worst relative factor error ", worst_factor);
+  CHECK(low_log > -0.0861);
+  CHECK(high_log <= 0.0);
+  CHECK(low_exp >= 0.0);
+  CHECK(high_exp < 0.062);
+  CHECK(worst_factor < 0.037);
 }

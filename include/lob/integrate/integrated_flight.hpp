@@ -8,6 +8,7 @@
 #include <cstdint>
 #include <optional>
 #include <span>
+#include <utility>
 
 #include <boost/math/tools/roots.hpp>
 #include <boost/math/tools/toms748_solve.hpp>
@@ -424,6 +425,9 @@ class integrated_flight {
               ? T(options_.initial_step)
               : detail::dp5_initial_step(f, y, fy, rtol_, atol_, T(options_.max_time));
     bool before_apex = apex_pending_;
+    // One piece for the whole walk, its ends updated per step: it refers to y, y1 and k,
+    // and building a fresh one each step cleared its dense-output storage every time.
+    adaptive_piece p{t, t, y, y1, k, tag::any, false};
     for (std::int64_t n = 0;; ++n) {
       if (!(t < options_.max_time))
         return fail(errc::time_limit, "the event was not reached within max_time =", options_.max_time);
@@ -482,13 +486,21 @@ class integrated_flight {
           y1 = y;
           k.k7 = fy;
         }
-        const adaptive_piece p{t, t_apex, y, y1, k, tag::rising, true};
-        if (visit(p)) return {};
+        p.t0 = t;
+        p.t1 = t_apex;
+        p.branch = tag::rising;
+        p.ends_at_apex = true;
+        p.dense.reset();
+        if (visit(std::as_const(p))) return {};
         t = t_apex;
         before_apex = false;
       } else {
-        const adaptive_piece p{t, t1, y, y1, k, current_tag(before_apex), false};
-        if (visit(p)) return {};
+        p.t0 = t;
+        p.t1 = t1;
+        p.branch = current_tag(before_apex);
+        p.ends_at_apex = false;
+        p.dense.reset();
+        if (visit(std::as_const(p))) return {};
         t = t1;
       }
       y = y1;
