@@ -11,6 +11,7 @@
 #include <cstdlib>
 #include <fstream>
 #include <limits>
+#include <optional>
 #include <random>
 #include <sstream>
 #include <string>
@@ -549,6 +550,87 @@ TEST_CASE_TEMPLATE("the points at a distance and at a time match the mpmath refe
   CHECK(checked > 100);
   MESSAGE("max conditioned rel err at a distance: time ", worst_time, ", height ", worst_rise,
           "; at a time: ", worst_at_time, " (", checked, " rows)");
+}
+
+// Aiming on the hodograph: the reference's landing point, aimed at from an elevation
+// 0.01 rad off (started as the aim starts it, with the inclination at the point of a trial
+// flight at the guess), gives an elevation whose flight passes the point: the row's own
+// elevation, or near the edge of reach the other root. Newton's method may fail to
+// converge (the aim then falls back to a bracketing search): that must be an error value,
+// and rare.
+TEST_CASE_TEMPLATE("aiming at a reference point finds a launch elevation through it", T, float, double,
+                   long double, mp50) {
+  using lob::detail::hodograph_aim;
+  using lob::detail::hodograph_at_distance;
+  const std::vector<reference_row> rows = reference();
+  REQUIRE(!rows.empty());
+  const T never = T(1000000);
+  double worst_miss = 0;
+  int same = 0, other = 0, failed = 0;
+  for (const reference_row& r : rows) {
+    const double th_d = std::strtod(r[col::theta].c_str(), nullptr);
+    const double phi = std::strtod(r[col::phi_land].c_str(), nullptr);
+    if (std::abs(th_d) > 1.5 || phi < -1.5) continue;  // (near-)vertical: the distance hardly moves
+    const T c = parse<T>(r[col::c]), g = parse<T>(r[col::g]), v = parse<T>(r[col::v0]);
+    const T th = parse<T>(r[col::theta]), hh = parse<T>(r[col::h]);
+    const T x = parse<T>(r[col::x_land]);
+    if (!(x > T(0))) continue;
+    const double length = std::fmax(std::strtod(r[col::x_land].c_str(), nullptr),
+                                    std::abs(std::strtod(r[col::y_apex].c_str(), nullptr)));
+    const T guess = th + T(1) / T(100);
+    const lob::result<hodograph_point<T>> trial = hodograph_at_distance(c, g, v, guess, x, never);
+    const std::optional<T> inclination = trial ? std::optional<T>(trial->inclination) : std::nullopt;
+    const lob::result<lob::detail::hodograph_aim_root<T>> a = hodograph_aim(c, g, v, x, hh, guess, inclination);
+    if (!a) {
+      ++failed;
+      CHECK(a.error().code() == lob::errc::no_convergence);
+      MESSAGE("no convergence: theta ", r[col::theta], " c ", r[col::c], " h ", r[col::h]);
+      continue;
+    }
+    // The miss of the aimed flight at the reference point: two computations, each within
+    // the tolerance of the table's point, so within twice that of each other.
+    const lob::result<hodograph_point<T>> p = hodograph_at_distance(c, g, v, a->elevation, x, never);
+    REQUIRE(p.has_value());
+    const double miss = static_cast<double>(T(abs(T(p->rise - hh)))) / length;
+    worst_miss = std::max(worst_miss, miss);
+    CHECK_MESSAGE(miss <= 2 * tolerance<T>::value, "theta ", r[col::theta], " c ", r[col::c], " miss ", miss);
+    (abs(T(a->elevation - th)) < T(1) / T(1000) ? same : other) += 1;
+  }
+  CHECK(same > 100);
+  CHECK(failed * 100 <= same + other + failed);
+  MESSAGE("aimed at ", same + other + failed, " reference points: ", same, " gave the row's elevation, ", other,
+          " the other root, ", failed, " did not converge; worst miss ", worst_miss);
+}
+
+TEST_CASE("the hodograph aim's slope matches a difference quotient of the height at the distance") {
+  using lob::detail::hodograph_aim;
+  using lob::detail::hodograph_at_distance;
+  const double g = 9.80665, c = g / (25.0 * 25.0), v = 35.0;
+  for (const double th : {-0.3, 0.2, 0.7, 1.2}) {
+    const lob::result<hodograph_point<double>> target = hodograph_at_distance(c, g, v, th, 30.0, 1e6);
+    REQUIRE(target.has_value());
+    const lob::result<lob::detail::hodograph_aim_root<double>> a =
+        hodograph_aim(c, g, v, 30.0, target->rise, th, std::optional<double>(target->inclination));
+    REQUIRE(a.has_value());
+    CHECK(std::abs(a->elevation - th) < 1e-14);
+    const double h = 1e-5;
+    const lob::result<hodograph_point<double>> up = hodograph_at_distance(c, g, v, th + h, 30.0, 1e6);
+    const lob::result<hodograph_point<double>> down = hodograph_at_distance(c, g, v, th - h, 30.0, 1e6);
+    REQUIRE((up && down));
+    const double quotient = (up->rise - down->rise) / (2 * h);  // central difference, error ~ h^2
+    CHECK(std::abs(a->slope - quotient) <= 1e-7 * std::abs(quotient));
+  }
+}
+
+TEST_CASE_TEMPLATE("the hodograph aim rejects bad inputs", T, float, double, long double) {
+  using lob::detail::hodograph_aim;
+  const T g = lob::standard_gravity<T>(), c = T(1) / T(100), v = T(20);
+  CHECK(hodograph_aim(c, g, v, T(0), T(1), T(0.5)).error().code() == lob::errc::invalid_argument);
+  CHECK(hodograph_aim(c, g, v, T(10), std::numeric_limits<T>::infinity(), T(0.5)).error().code() ==
+        lob::errc::invalid_argument);
+  CHECK(hodograph_aim(T(-1), g, v, T(10), T(1), T(0.5)).error().code() == lob::errc::invalid_argument);
+  // far beyond reach (the vacuum reach of 20 m/s is 41 m): no root, an error value
+  CHECK(hodograph_aim(c, g, v, T(500), T(0), T(0.5)).error().code() == lob::errc::no_convergence);
 }
 
 TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float, double, long double, mp50) {

@@ -13,6 +13,7 @@
 #include <Eigen/Core>
 #include <cstdint>
 #include <limits>
+#include <optional>
 #include <type_traits>
 
 #include "lob/core/flight_types.hpp"
@@ -395,15 +396,41 @@ class hodograph_path {
   // than its own width takes e^tau - 1 at every node.
   [[nodiscard]] hodograph_sums<T> integral(const T& a, const T& b, node_rates* keep = nullptr,
                                            T hodograph_sums<T>::*q = &hodograph_sums<T>::rise) const {
-    using nodes = Eigen::Array<T, int(2 * half_points), 1>;
-    using halves = Eigen::Array<T, int(half_points), 1>;
+    const panel_nodes p = nodes_of(a, b);
+    const nodes rt = p.u * p.cosh_sigma;  // g dt/dtau = v
+    const nodes rx = p.u * rt;
+    const nodes ry = rx * p.sinh_sigma;
+    const hodograph_sums<T> s(p.sum(rt), p.sum(rx), p.sum(ry));
+    if (keep) {
+      const nodes& r = q == &hodograph_sums<T>::rise ? ry : q == &hodograph_sums<T>::distance ? rx : rt;
+      for (unsigned i = 0; i < half_points; ++i) {
+        keep->plus[i] = r(i);
+        keep->minus[i] = r(half_points + i);
+      }
+    }
+    return s * T(p.half / g_);
+  }
+
+  // Nodes 0..half_points-1 of a panel at mid + h_i, the rest at mid - h_i (h_i = half x_i;
+  // the centre node of an odd rule appears twice, with half its weight each time).
+  using nodes = Eigen::Array<T, int(2 * half_points), 1>;
+  using halves = Eigen::Array<T, int(half_points), 1>;
+  struct panel_nodes {
+    T half;  // half the panel width
+    nodes u, cosh_sigma, sinh_sigma;
+    // The Gauss sum of values at the nodes (times half the width: the integral).
+    [[nodiscard]] T sum(const nodes& f) const {
+      halves wh = Eigen::Map<const halves>(gauss::weights().data());
+      if (points & 1u) wh(0) /= 2;
+      return T((wh * (f.head(half_points) + f.tail(half_points))).sum());
+    }
+  };
+
+  // u, cosh(sigma) and sinh(sigma) at the Gauss nodes of [a, b].
+  [[nodiscard]] panel_nodes nodes_of(const T& a, const T& b) const {
     const T mid = (a + b) / 2;
     const T half = (b - a) / 2;
-    const auto& x = gauss::abscissa();
-    const auto& w = gauss::weights();
-    // Nodes 0..half_points-1 at mid + h_i, the rest at mid - h_i (h_i = half x_i; the
-    // centre node of an odd rule appears twice, with half its weight each time).
-    const halves h = half * Eigen::Map<const halves>(x.data());
+    const halves h = half * Eigen::Map<const halves>(gauss::abscissa().data());
     nodes tau;
     tau << mid + h, mid - h;
     nodes et;   // e^tau
@@ -430,25 +457,13 @@ class hodograph_path {
     const nodes sinh_tau = (emt + emt * iet) / 2;
     const nodes cosh_sum = (e0_ * es + ie0_ * ies) / 2;  // cosh(sigma0 + sigma)
     const nodes one_plus_d = T(1) + kc_ * (cosh_sum * sinh_tau + tau);
-    const nodes u = u0_ / one_plus_d.sqrt();
+    panel_nodes p;
+    p.half = half;
+    p.u = u0_ / one_plus_d.sqrt();
+    p.cosh_sigma = (es + ies) / 2;
     // Near the apex sinh(sigma) from its series, where (e - 1/e)/2 would cancel.
-    const nodes sinh_sigma = (sigma.square() < T(1) / T(4)).select(sinh_small(sigma), (es - ies) / 2);
-    const nodes rt = u * (es + ies) / 2;  // g dt/dtau = v
-    const nodes rx = u * rt;
-    const nodes ry = rx * sinh_sigma;
-    halves wh = Eigen::Map<const halves>(w.data());
-    if (points & 1u) wh(0) /= 2;
-    const hodograph_sums<T> s(T((wh * (rt.head(half_points) + rt.tail(half_points))).sum()),
-                              T((wh * (rx.head(half_points) + rx.tail(half_points))).sum()),
-                              T((wh * (ry.head(half_points) + ry.tail(half_points))).sum()));
-    if (keep) {
-      const nodes& r = q == &hodograph_sums<T>::rise ? ry : q == &hodograph_sums<T>::distance ? rx : rt;
-      for (unsigned i = 0; i < half_points; ++i) {
-        keep->plus[i] = r(i);
-        keep->minus[i] = r(half_points + i);
-      }
-    }
-    return s * T(half / g_);
+    p.sinh_sigma = (sigma.square() < T(1) / T(4)).select(sinh_small(sigma), (es - ies) / 2);
+    return p;
   }
 
   // e^z - 1 for each node offset z >= 0: the series where every z <= 1 in a built-in type,
@@ -464,6 +479,35 @@ class hodograph_path {
       }
     }
     return z.unaryExpr([](const T& y) { return T(detail::expm1(y)); });
+  }
+
+  // Sums from the launch to tau_e for aiming: (t, x, y), and the integrals x4 and y4 of
+  // u^3 v / g and u^3 v sinh(sigma) / g, from which hodograph_aim forms the derivatives of
+  // x and y with respect to the launch elevation (see there).
+  struct aim_sums {
+    hodograph_sums<T> s{T(0)};
+    T x4{};
+    T y4{};
+  };
+  [[nodiscard]] result<aim_sums> aim_sums_to(const T& tau_e) const {
+    aim_sums out;
+    T a(0);
+    for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
+      if (!(tau_e > a)) return out;
+      T b = next_break(a);
+      if (!(tau_e > b + T(b - a) / 2)) b = tau_e;  // the last panel stretched, as in ascent()
+      const panel_nodes p = nodes_of(a, b);
+      const nodes rt = p.u * p.cosh_sigma;
+      const nodes rx = p.u * rt;
+      const nodes ry = rx * p.sinh_sigma;
+      const nodes u2 = p.u.square();
+      const T w = p.half / g_;
+      out.s += hodograph_sums<T>(p.sum(rt), p.sum(rx), p.sum(ry)) * w;
+      out.x4 += T(p.sum(nodes(rx * u2)) * w);
+      out.y4 += T(p.sum(nodes(ry * u2)) * w);
+      a = b;
+    }
+    return fail(errc::no_convergence, "aim sums need more quadrature panels than allowed, tau =", tau_e);
   }
 
   // The same with Boost's short rule, for Newton corrections of at most 1/1000 of a panel.
@@ -909,6 +953,86 @@ template <Real T>
   if (hodograph_vertical(theta0))
     return fail(errc::invalid_argument, "times along a vertical shot are not on the hodograph path");
   return hodograph_search_growing(c, g, v0, theta0, t, &hodograph_sums<T>::time, t);
+}
+
+/// The launch elevation [rad] at speed v0 [m/s] whose flight under a = g - c |v| v in still
+/// air passes the point `distance` [m] > 0 away and `rise` [m] up, by Newton's method from
+/// `guess` on both the elevation theta and the inverse Gudermannian sigma_e of the path
+/// inclination at that point: one quadrature from the launch to sigma_e per iteration, and
+/// no search for the distance. The Jacobian is exact. With x, y = integrals of
+/// (u v, u v sinh sigma)/g over sigma from sigma_e to sigma0 (tau = sigma0 - sigma) and
+/// u^-2 = (v0 cos theta)^-2 + (c/g) (f(sigma0) - f(sigma)) (see hodograph_path), only
+/// sigma0 = asinh(tan theta) and u depend on theta, and d(u^-2)/dtheta is the same K =
+/// 2 (sin(theta)/v0^2 + c/g) / cos^3(theta) at every sigma, so that
+///   dx/dtheta = v0^2/g - K x4,  dy/dtheta = v0^2 tan(theta)/g - K y4
+/// (x4, y4: the integrals with an extra u^2), and d(x, y)/dsigma_e = -(u v, u v sinh)/g there.
+/// `inclination_guess` [rad] is the path inclination at the point for the guessed
+/// elevation, if known (a trial flight's); else the vacuum one is taken.
+/// Converges to the root nearest the guess (flat or lofted); the caller checks which. Also
+/// gives the slope there of the height at the point's distance with respect to the elevation,
+/// dy/dtheta - tan(phi) dx/dtheta [m/rad] (from the last Jacobian).
+/// Errors: `no_convergence` when the iteration leaves the launch directions, the Jacobian
+/// is singular (the edge of reach) or the cap of `max_iterations` is hit.
+template <Real T>
+struct hodograph_aim_root {
+  T elevation;  ///< [rad]
+  T slope;      ///< d(height at the distance)/d(elevation) [m/rad]
+};
+
+template <Real T>
+[[nodiscard]] result<hodograph_aim_root<T>> hodograph_aim(const T& c, const T& g, const T& v0, const T& distance, const T& rise,
+                                      const T& guess, const std::optional<T>& inclination_guess = std::nullopt,
+                                      int max_iterations = 40) {
+  using std::abs;
+  using std::cos;
+  using std::ldexp;
+  using std::sin;
+  using std::tan;
+  if (const status ok = hodograph_check(c, g, v0, guess); !ok) return unexpected<error>(ok.error());
+  if (!is_finite(distance) || !(distance > T(0)) || !is_finite(rise))
+    return fail(errc::invalid_argument, "aim point must be finite and away from the vertical", distance);
+  const T half_pi = boost::math::constants::half_pi<T>();
+  const T small = ldexp(T(1), -std::numeric_limits<T>::digits / 2) / 16;
+  T theta = guess;
+  // Without a known inclination at the point, the vacuum one:
+  // tan(phi) = tan(theta) - g x / (v0 cos theta)^2.
+  const T slope = inclination_guess ? T(tan(*inclination_guess))
+                                    : T(tan(theta) - g * distance / T(v0 * v0 * cos(theta) * cos(theta)));
+  T sigma_e = boost::math::asinh(slope, no_throw_policy{});
+  for (int i = 0; i < max_iterations; ++i) {
+    if (hodograph_vertical(theta)) break;
+    const hodograph_path<T> path(c, g, v0, theta);
+    T tau_e = path.sigma0() - sigma_e;
+    if (tau_e < T(0)) tau_e = T(0);
+    if (tau_e > path.tau_max()) break;
+    const result<typename hodograph_path<T>::aim_sums> s = path.aim_sums_to(tau_e);
+    if (!s) return unexpected<error>(s.error());
+    const hodograph_sums<T> r = hodograph_path<T>::rates(path.at(tau_e));
+    const T rx = r.distance / g;
+    const T ry = r.rise / g;
+    const T cos0 = cos(theta);
+    const T k = 2 * T(sin(theta) / (v0 * v0) + c / g) / T(cos0 * cos0 * cos0);
+    const T x_theta = v0 * v0 / g - k * s->x4;
+    const T y_theta = T(v0 * v0 / g) * tan(theta) - k * s->y4;
+    const T f1 = s->s.distance - distance;
+    const T f2 = s->s.rise - rise;
+    const T det = y_theta * rx - x_theta * ry;
+    if (!is_finite(det) || det == T(0)) break;
+    const T d_theta = (rx * f2 - f1 * ry) / det;  // J (d_theta, d_sigma) = (f1, f2)
+    const T d_sigma = (x_theta * f2 - y_theta * f1) / det;
+    // Damped far from the root: at most 0.2 rad of elevation and 1 of sigma per step.
+    T damp(1);
+    if (abs(d_theta) > T(1) / T(5)) damp = T(1) / T(5) / abs(d_theta);
+    if (abs(d_sigma) * damp > T(1)) damp = T(1) / abs(d_sigma);
+    theta -= damp * d_theta;
+    sigma_e -= damp * d_sigma;
+    if (!(abs(theta) < half_pi)) break;
+    // A full step this small leaves an error of order its square: converged.
+    if (damp == T(1) && abs(d_theta) <= small * (T(1) + abs(theta)) &&
+        abs(d_sigma) <= small * (T(1) + abs(sigma_e)))
+      return hodograph_aim_root<T>{theta, T(det / rx)};
+  }
+  return fail(errc::no_convergence, "hodograph aim did not converge from elevation", guess);
 }
 
 }  // namespace lob::detail

@@ -100,12 +100,13 @@ template <DragModel M, Real T = scalar_of<M>>
 }
 
 // Completes a solution from a launch velocity and the time it meets the target and
-// records the arrival: from the closed form for vacuum and linear drag, else by flying
-// it with lob::fly().
+// records the arrival: `known` when a trial flight has it already, else from the closed
+// form for vacuum and linear drag, else by flying it with lob::fly().
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<aim_solution<T>> complete(const M& model, const medium<T>& air, const aim_frame<T>& frame,
                                                const vec3<T>& launch, const vec3<T>& velocity, const T& time,
-                                               const solve_options<T>& o) {
+                                               const solve_options<T>& o,
+                                               const std::optional<state<T>>& known = std::nullopt) {
   using std::sqrt;
   aim_solution<T> s;
   s.velocity = velocity;
@@ -114,6 +115,7 @@ template <DragModel M, Real T = scalar_of<M>>
   s.azimuth = frame.azimuth_of(velocity);
   s.time_of_flight = time;
   const result<state<T>> end = [&]() -> result<state<T>> {
+    if (known) return *known;
     if constexpr (model_traits<M>::closed_form) {
       (void)o;
       return closed_form_state(model, air, launch, velocity, time);
@@ -456,6 +458,44 @@ struct shooter {
     return p;
   }
 
+  // Quadratic drag in still air, flown on the hodograph path (`exact`, set by the caller):
+  // the root nearest `guess` by Newton's method on the hodograph quadrature itself
+  // (detail::hodograph_aim, which needs no trial flights but the first), then checked on
+  // one trial flight, which is kept. Gives the elevation and the slope of the miss there;
+  // empty when the guess falls short, the iteration does not converge, or the root lies
+  // outside (lo, hi) or misses by more than tol.
+  bool exact = false;
+  struct exact_hit {
+    T elevation;
+    T slope;  // d miss / d elevation [m/rad]
+  };
+  [[nodiscard]] std::optional<exact_hit> exact_root(const T& azimuth, const T& speed, const T& guess, const T& lo,
+                                                    const T& hi, const T& tol) const {
+    if constexpr (model_traits<M>::quadratic_fast_path) {
+      using std::abs;
+      using std::atan2;
+      using std::sqrt;
+      if (!exact || azimuth != bearing || !(distance > T(0))) return std::nullopt;
+      // The trial at the guess gives the inclination at the target's distance, so that
+      // Newton's method starts on the flight through that distance.
+      const probe_result<T> start = probe(guess, azimuth, speed);
+      if (!start.reached) return std::nullopt;
+      const vec3<T>& v = start.at.velocity;
+      const T v_up = frame.up.dot(v);
+      const T inclination = atan2(v_up, T(sqrt(T((v - v_up * frame.up).squaredNorm()))));
+      const T g = sqrt(T(air.gravity.squaredNorm()));
+      const result<detail::hodograph_aim_root<T>> e =
+          detail::hodograph_aim(T(model_traits<M>::quadratic_coefficient(model)), g, speed, distance, rise, guess,
+                                std::optional<T>(inclination));
+      if (!e || !(e->elevation > lo && e->elevation < hi)) return std::nullopt;
+      const probe_result<T> p = probe(e->elevation, azimuth, speed);
+      if (!p.reached || !(abs(p.miss) <= tol)) return std::nullopt;
+      return exact_hit{e->elevation, e->slope};
+    } else {
+      return std::nullopt;
+    }
+  }
+
   [[nodiscard]] probe_result<T> fresh_probe(const T& elevation, const T& azimuth, const T& speed) const {
     probe_result<T> p;
     p.velocity = vec3<T>(speed * frame.direction(elevation, azimuth));
@@ -559,12 +599,33 @@ template <DragModel M, Real T = scalar_of<M>>
           g2 = atan(T(pm + hi_u));
         }
         sh.slot = 0;
-        const result<T> r1 = secant_in_bracket(miss, a, mid, f_a, f_mid, g1, tol, bits, sh.opts.max_iterations,
-                                               "aim: flat root did not converge");
+        const std::optional<typename shooter<M>::exact_hit> e1 = sh.exact_root(azimuth, speed, g1, a, mid, tol);
+        const result<T> r1 = e1 ? result<T>(e1->elevation)
+                                : secant_in_bracket(miss, a, mid, f_a, f_mid, g1, tol, bits, sh.opts.max_iterations,
+                                                    "aim: flat root did not converge");
         if (!r1) return unexpected<error>(r1.error());
         sh.slot = 1;
-        const result<T> r2 = secant_in_bracket(miss, mid, b, f_mid, f_b, g2, tol, bits, sh.opts.max_iterations,
-                                               "aim: lofted root did not converge");
+        std::optional<typename shooter<M>::exact_hit> e2;
+        if (e1) {
+          // The lofted guess from the flat root, the slope there and the midway trial, the
+          // miss taken as quadratic in p = tan(theta), -A (p - p_flat) (p - p_lofted), as in
+          // vacuum: p_lofted = (f_mid p_f - s (p_m - p_f) p_m) / (f_mid - s (p_m - p_f)).
+          using std::cos;
+          const T pf = tan(e1->elevation);
+          const T s = e1->slope * cos(e1->elevation) * cos(e1->elevation);  // d miss / dp
+          const T pm = tan(mid);
+          const T den = f_mid - s * (pm - pf);
+          T guess = (mid + b) / 2;
+          if (den < T(0)) {
+            const T pl = (f_mid * pf - s * (pm - pf) * pm) / den;
+            const T e = atan(pl);
+            if (e > mid && e < b) guess = e;
+          }
+          e2 = sh.exact_root(azimuth, speed, guess, mid, b, tol);
+        }
+        const result<T> r2 = e2 ? result<T>(e2->elevation)
+                                : secant_in_bracket(miss, mid, b, f_mid, f_b, g2, tol, bits, sh.opts.max_iterations,
+                                                    "aim: lofted root did not converge");
         if (!r2) return unexpected<error>(r2.error());
         out.flat = *r1;
         out.lofted = *r2;
@@ -791,6 +852,7 @@ template <DragModel M, Real T = scalar_of<M>>
   bool exact_probes = model_traits<M>::closed_form;
   if constexpr (model_traits<M>::quadratic_fast_path)
     exact_probes = o.flight.use_fast_paths && o.flight.method == stepper::adaptive && air.wind == vec3<T>::Zero();
+  sh.exact = exact_probes && !model_traits<M>::closed_form;
   shooter<M> coarse = sh;
   int coarse_bits = root_bits<T>();
   if (!exact_probes) {
@@ -832,7 +894,8 @@ template <DragModel M, Real T = scalar_of<M>>
     }
     if (!hit) return unexpected<error>(hit.error());
     const result<aim_solution<T>> s =
-        complete(model, air, frame, req.launch_point, hit->shot.velocity, hit->shot.at.time, o);
+        complete(model, air, frame, req.launch_point, hit->shot.velocity, hit->shot.at.time, o,
+                 hit->shot.reached ? std::optional<state<T>>(hit->shot.at) : std::nullopt);
     if (!s) return unexpected<error>(s.error());
     (b == 0 ? out.flat : out.lofted) = *s;
   }
