@@ -970,13 +970,15 @@ template <Real T>
 /// elevation, if known (a trial flight's); else the vacuum one is taken.
 /// Converges to the root nearest the guess (flat or lofted); the caller checks which. Also
 /// gives the slope there of the height at the point's distance with respect to the elevation,
-/// dy/dtheta - tan(phi) dx/dtheta [m/rad] (from the last Jacobian).
+/// dy/dtheta - tan(phi) dx/dtheta [m/rad] (from the last Jacobian), and the flight at the
+/// point from one more quadrature at the final iterate.
 /// Errors: `no_convergence` when the iteration leaves the launch directions, the Jacobian
 /// is singular (the edge of reach) or the cap of `max_iterations` is hit.
 template <Real T>
 struct hodograph_aim_root {
-  T elevation;  ///< [rad]
-  T slope;      ///< d(height at the distance)/d(elevation) [m/rad]
+  T elevation;                ///< [rad]
+  T slope;                    ///< d(height at the distance)/d(elevation) [m/rad]
+  hodograph_point<T> arrival;  ///< the flight at the point, from the final elevation
 };
 
 template <Real T>
@@ -1029,8 +1031,15 @@ template <Real T>
     if (!(abs(theta) < half_pi)) break;
     // A full step this small leaves an error of order its square: converged.
     if (damp == T(1) && abs(d_theta) <= small * (T(1) + abs(theta)) &&
-        abs(d_sigma) <= small * (T(1) + abs(sigma_e)))
-      return hodograph_aim_root<T>{theta, T(det / rx)};
+        abs(d_sigma) <= small * (T(1) + abs(sigma_e))) {
+      if (hodograph_vertical(theta)) break;
+      const hodograph_path<T> end(c, g, v0, theta);
+      const T tau_end = end.sigma0() - sigma_e;
+      if (!(tau_end >= T(0) && tau_end <= end.tau_max())) break;
+      const result<typename hodograph_path<T>::aim_sums> e = end.aim_sums_to(tau_end);
+      if (!e) return unexpected<error>(e.error());
+      return hodograph_aim_root<T>{theta, T(det / rx), end.point(tau_end, e->s)};
+    }
   }
   return fail(errc::no_convergence, "hodograph aim did not converge from elevation", guess);
 }

@@ -449,38 +449,43 @@ struct shooter {
   mutable std::size_t slot = 0;
 
   [[nodiscard]] probe_result<T> probe(const T& elevation, const T& azimuth, const T& speed) const {
-    using std::abs;
     for (const std::optional<trial>& k : kept)
       if (k && k->elevation == elevation && k->azimuth == azimuth && k->speed == speed) return k->result;
     const probe_result<T> p = fresh_probe(elevation, azimuth, speed);
+    keep(elevation, azimuth, speed, p);
+    return p;
+  }
+  void keep(const T& elevation, const T& azimuth, const T& speed, const probe_result<T>& p) const {
+    using std::abs;
     std::optional<trial>& k = kept[slot];
     if (p.reached && (!k || abs(p.miss) <= abs(k->result.miss))) k = trial{elevation, azimuth, speed, p};
-    return p;
   }
 
   // Quadratic drag in still air, flown on the hodograph path (`exact`, set by the caller):
   // the root nearest `guess` by Newton's method on the hodograph quadrature itself
-  // (detail::hodograph_aim, which needs no trial flights but the first), then checked on
-  // one trial flight, which is kept. Gives the elevation and the slope of the miss there;
-  // empty when the guess falls short, the iteration does not converge, or the root lies
-  // outside (lo, hi) or misses by more than tol.
+  // (detail::hodograph_aim), started from the trial flight `start` at the guess (flown
+  // when not given), which gives the inclination at the target's distance. The flight of
+  // the root, from the method's last quadrature, becomes the kept trial. Gives the
+  // elevation and the slope of the miss there; empty when the guess falls short, the
+  // iteration does not converge, or the root lies outside (lo, hi) or misses by more than tol.
   bool exact = false;
   struct exact_hit {
     T elevation;
     T slope;  // d miss / d elevation [m/rad]
   };
-  [[nodiscard]] std::optional<exact_hit> exact_root(const T& azimuth, const T& speed, const T& guess, const T& lo,
-                                                    const T& hi, const T& tol) const {
+  [[nodiscard]] std::optional<exact_hit> exact_root(const T& azimuth, const T& speed, const T& guess,
+                                                    const probe_result<T>* start, const T& lo, const T& hi,
+                                                    const T& tol) const {
     if constexpr (model_traits<M>::quadratic_fast_path) {
       using std::abs;
       using std::atan2;
+      using std::cos;
+      using std::sin;
       using std::sqrt;
       if (!exact || azimuth != bearing || !(distance > T(0))) return std::nullopt;
-      // The trial at the guess gives the inclination at the target's distance, so that
-      // Newton's method starts on the flight through that distance.
-      const probe_result<T> start = probe(guess, azimuth, speed);
-      if (!start.reached) return std::nullopt;
-      const vec3<T>& v = start.at.velocity;
+      const probe_result<T> trial = start ? *start : probe(guess, azimuth, speed);
+      if (!trial.reached) return std::nullopt;
+      const vec3<T>& v = trial.at.velocity;
       const T v_up = frame.up.dot(v);
       const T inclination = atan2(v_up, T(sqrt(T((v - v_up * frame.up).squaredNorm()))));
       const T g = sqrt(T(air.gravity.squaredNorm()));
@@ -488,8 +493,17 @@ struct shooter {
           detail::hodograph_aim(T(model_traits<M>::quadratic_coefficient(model)), g, speed, distance, rise, guess,
                                 std::optional<T>(inclination));
       if (!e || !(e->elevation > lo && e->elevation < hi)) return std::nullopt;
-      const probe_result<T> p = probe(e->elevation, azimuth, speed);
-      if (!p.reached || !(abs(p.miss) <= tol)) return std::nullopt;
+      const detail::hodograph_point<T>& end = e->arrival;
+      const vec3<T> ahead = level / distance;
+      probe_result<T> p;
+      p.reached = true;
+      p.velocity = vec3<T>(speed * frame.direction(e->elevation, azimuth));
+      p.at.time = end.time;
+      p.at.position = vec3<T>(launch + end.distance * ahead + end.rise * frame.up);
+      p.at.velocity = vec3<T>(end.speed * (cos(end.inclination) * ahead + sin(end.inclination) * frame.up));
+      p.miss = end.rise - rise;
+      if (!(abs(p.miss) <= tol)) return std::nullopt;
+      keep(e->elevation, azimuth, speed, p);
       return exact_hit{e->elevation, e->slope};
     } else {
       return std::nullopt;
@@ -561,10 +575,16 @@ template <DragModel M, Real T = scalar_of<M>>
     const T f_mid = miss(mid);
     if (f_mid > tol) {
       T a = vf;
-      T f_a = vf > sight ? miss(vf) : T(1);
+      probe_result<T> at_a;  // kept as the start of an exact flat root
+      T f_a = T(1);
+      if (vf > sight) {
+        at_a = sh.probe(vf, azimuth, speed);
+        f_a = at_a.miss;
+      }
       if (!(f_a < T(0))) {
         a = sight;
-        f_a = miss(sight);
+        at_a = sh.probe(sight, azimuth, speed);
+        f_a = at_a.miss;
       }
       T b = vl;
       T f_b = vl < top ? miss(vl) : T(1);
@@ -599,7 +619,7 @@ template <DragModel M, Real T = scalar_of<M>>
           g2 = atan(T(pm + hi_u));
         }
         sh.slot = 0;
-        const std::optional<typename shooter<M>::exact_hit> e1 = sh.exact_root(azimuth, speed, g1, a, mid, tol);
+        const std::optional<typename shooter<M>::exact_hit> e1 = sh.exact_root(azimuth, speed, a, &at_a, a, mid, tol);
         const result<T> r1 = e1 ? result<T>(e1->elevation)
                                 : secant_in_bracket(miss, a, mid, f_a, f_mid, g1, tol, bits, sh.opts.max_iterations,
                                                     "aim: flat root did not converge");
@@ -621,7 +641,7 @@ template <DragModel M, Real T = scalar_of<M>>
             const T e = atan(pl);
             if (e > mid && e < b) guess = e;
           }
-          e2 = sh.exact_root(azimuth, speed, guess, mid, b, tol);
+          e2 = sh.exact_root(azimuth, speed, guess, nullptr, mid, b, tol);
         }
         const result<T> r2 = e2 ? result<T>(e2->elevation)
                                 : secant_in_bracket(miss, mid, b, f_mid, f_b, g2, tol, bits, sh.opts.max_iterations,
