@@ -132,6 +132,26 @@ T pi_half() {
 
 }  // namespace
 
+// The node loops' series, against the standard library's expm1 and sinh (std, correctly
+// rounded to within an ulp or so: from memory of glibc's documented accuracy).
+TEST_CASE_TEMPLATE("the vectorised series for e^x - 1 and sinh agree with std", T, float, double, long double) {
+  using arr = Eigen::Array<T, 64, 1>;
+  arr x;
+  for (int i = 0; i < 64; ++i) x(i) = T(i) / T(63) * (i % 2 ? T(1) : T(1) / T(1000));  // [0, 1] and near 0
+  const arr e = lob::detail::expm1_unit(x);
+  arr y = x - T(1) / T(2);  // sinh_small's domain, |y| < 1/2
+  const arr sh = lob::detail::sinh_small(y);
+  double worst_e = 0, worst_s = 0;
+  for (int i = 0; i < 64; ++i) {
+    if (x(i) > T(0)) worst_e = std::max(worst_e, double(std::abs(e(i) / std::expm1(x(i)) - 1)));
+    if (y(i) != T(0)) worst_s = std::max(worst_s, double(std::abs(sh(i) / std::sinh(y(i)) - 1)));
+  }
+  const double eps = std::numeric_limits<T>::epsilon();
+  CHECK(worst_e <= 4 * eps);
+  CHECK(worst_s <= 4 * eps);
+  MESSAGE("worst relative difference in ulps: e^x - 1 ", worst_e / eps, ", sinh ", worst_s / eps);
+}
+
 TEST_CASE("the reference table is there and covers the intended ranges") {
   const std::vector<reference_row> rows = reference();
   REQUIRE(rows.size() >= 150);
