@@ -502,7 +502,8 @@ struct shooter {
       p.at.position = vec3<T>(launch + end.distance * ahead + end.rise * frame.up);
       p.at.velocity = vec3<T>(end.speed * (cos(end.inclination) * ahead + sin(end.inclination) * frame.up));
       p.miss = end.rise - rise;
-      if (!(abs(p.miss) <= tol)) return std::nullopt;
+      // As a trial flight would: a miss beyond tol, or an arrival after the flights' time cap, fails.
+      if (!(abs(p.miss) <= tol) || end.time > probe_options.max_time) return std::nullopt;
       keep(e->elevation, azimuth, speed, p);
       return exact_hit{e->elevation, e->slope};
     } else {
@@ -619,7 +620,8 @@ template <DragModel M, Real T = scalar_of<M>>
           g2 = atan(T(pm + hi_u));
         }
         sh.slot = 0;
-        const std::optional<typename shooter<M>::exact_hit> e1 = sh.exact_root(azimuth, speed, a, &at_a, a, mid, tol);
+        const std::optional<typename shooter<M>::exact_hit> e1 =
+            sh.exact_root(azimuth, speed, a, &at_a, a, mid, tol);
         const result<T> r1 = e1 ? result<T>(e1->elevation)
                                 : secant_in_bracket(miss, a, mid, f_a, f_mid, g1, tol, bits, sh.opts.max_iterations,
                                                     "aim: flat root did not converge");
