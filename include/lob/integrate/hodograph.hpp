@@ -217,36 +217,6 @@ requires std::is_floating_point_v<T>
   return p * x;
 }
 
-/// The three-term recurrence of the Legendre polynomials, P_k+1 = alpha_k x P_k - beta_k P_k-1,
-/// and 1/(2k+1), for k < N: constants for built-in types, built per call otherwise.
-template <Real T, unsigned N>
-struct legendre_table {
-  std::array<T, N> alpha{};
-  std::array<T, N> beta{};
-  std::array<T, N> inv_odd{};
-};
-
-template <Real T, unsigned N>
-[[nodiscard]] constexpr legendre_table<T, N> make_legendre_table() {
-  legendre_table<T, N> t;
-  for (unsigned k = 0; k < N; ++k) {
-    t.alpha[k] = T(2 * k + 1) / T(k + 1);
-    t.beta[k] = T(k) / T(k + 1);
-    t.inv_odd[k] = T(1) / T(2 * k + 1);
-  }
-  return t;
-}
-
-template <Real T, unsigned N>
-[[nodiscard]] legendre_table<T, N> legendre_constants() {
-  if constexpr (std::is_floating_point_v<T>) {
-    static constexpr legendre_table<T, N> table = make_legendre_table<T, N>();
-    return table;
-  } else {
-    return make_legendre_table<T, N>();
-  }
-}
-
 /// The discrete Legendre transform of an N-point Gauss rule: the coefficients of the
 /// degree N-1 interpolant through values at the nodes +-x_i (x_i >= 0) are
 /// c_k = sum_i w_i P_k(x_i) (2k+1)/2 (f(x_i) + (-1)^k f(-x_i)) (discrete orthogonality).
@@ -281,15 +251,59 @@ template <Real T, unsigned N>
   return t;
 }
 
+/// The interpolant through values at the nodes of an N-point Gauss rule in powers of z,
+/// split by parity: p(z) = E(z^2) + z O(z^2), E's coefficients from the even parts
+/// f(x_i) + f(-x_i) of the values, O's from the odd parts f(x_i) - f(-x_i). It is the
+/// Legendre interpolant above with each P_k written in powers of z (P_k+1 = ((2k+1) z P_k
+/// - k P_k-1)/(k+1)). Powers of z are ill-conditioned for high degree in general, but the
+/// Legendre coefficients of a panel's smooth rates fall off like rho^-k, so the large
+/// power coefficients of the high P_k carry little weight: the interpolant is used only
+/// to start a Newton iteration on the true integral (see interpolated_root), where an
+/// error of eps times those coefficients (about 1e-11 relative in double) is harmless.
+/// The gain: E and O are two short Horner chains in z^2, about a quarter of the
+/// dependent steps of the Legendre recurrence.
+template <Real T, unsigned N>
+struct power_interpolant {
+  static constexpr int half = int(N + 1) / 2;
+  static constexpr int even_terms = int(N + 1) / 2;
+  static constexpr int odd_terms = int(N) / 2;
+  Eigen::Matrix<T, even_terms, half> even;
+  Eigen::Matrix<T, odd_terms, half> odd;
+};
+
+template <Real T, unsigned N>
+[[nodiscard]] power_interpolant<T, N> make_power_interpolant() {
+  const legendre_transform<T, N> lt = make_legendre_transform<T, N>();
+  // Powers-of-z coefficients of P_k, k < N: row k, column j.
+  Eigen::Matrix<T, int(N), int(N)> pk = Eigen::Matrix<T, int(N), int(N)>::Zero();
+  pk(0, 0) = T(1);
+  if (N > 1) pk(1, 1) = T(1);
+  for (unsigned k = 1; k + 1 < N; ++k)
+    for (unsigned j = 0; j < N; ++j) {
+      const T up = j > 0 ? T(T(2 * k + 1) * pk(int(k), int(j - 1))) : T(0);
+      pk(int(k + 1), int(j)) = (up - T(k) * pk(int(k - 1), int(j))) / T(k + 1);
+    }
+  power_interpolant<T, N> t;
+  t.even.setZero();
+  t.odd.setZero();
+  for (int m = 0; m < power_interpolant<T, N>::even_terms; ++m)
+    for (int k = 0; k < power_interpolant<T, N>::even_terms; ++k)
+      t.even.row(m) += pk(2 * k, 2 * m) * lt.even.row(k);
+  for (int m = 0; m < power_interpolant<T, N>::odd_terms; ++m)
+    for (int k = 0; k < power_interpolant<T, N>::odd_terms; ++k)
+      t.odd.row(m) += pk(2 * k + 1, 2 * m + 1) * lt.odd.row(k);
+  return t;
+}
+
 // Built once per rule for built-in types (a constant table, set up on first use); wider
 // types build it per call (returned by value), as their Gauss rules are.
 template <Real T, unsigned N>
-[[nodiscard]] decltype(auto) legendre_transform_table() {
+[[nodiscard]] decltype(auto) power_interpolant_table() {
   if constexpr (std::is_floating_point_v<T>) {
-    static const legendre_transform<T, N> table = make_legendre_transform<T, N>();
-    return static_cast<const legendre_transform<T, N>&>(table);
+    static const power_interpolant<T, N> table = make_power_interpolant<T, N>();
+    return static_cast<const power_interpolant<T, N>&>(table);
   } else {
-    return make_legendre_transform<T, N>();
+    return make_power_interpolant<T, N>();
   }
 }
 
@@ -461,8 +475,9 @@ class hodograph_path {
     p.half = half;
     p.u = u0_ / one_plus_d.sqrt();
     p.cosh_sigma = (es + ies) / 2;
-    // Near the apex sinh(sigma) from its series, where (e - 1/e)/2 would cancel.
-    p.sinh_sigma = (sigma.square() < T(1) / T(4)).select(sinh_small(sigma), (es - ies) / 2);
+    p.sinh_sigma = (es - ies) / 2;
+    const auto near_apex = sigma.square() < T(1) / T(4);
+    if (near_apex.any()) p.sinh_sigma = near_apex.select(sinh_small(sigma), p.sinh_sigma);
     return p;
   }
 
@@ -581,17 +596,16 @@ class hodograph_path {
   }
 
   // The root of the panel's interpolant of q: q(z) = q_a + (half/g) int_-1^z p, with p
-  // the Legendre series through the N node rates (its coefficients from the discrete
-  // orthogonality of the Gauss nodes, its integral from int P_k = (P_k+1 - P_k-1)/(2k+1)),
-  // solved by a safeguarded Newton iteration in z. Costs no evaluation of the integrand
-  // and is accurate to about the interpolation error of the panel, so that one true
-  // Newton step finishes the job.
+  // the polynomial through the N node rates (power_interpolant: E(z^2) + z O(z^2), whose
+  // integral from -1 is E1 - O1 + z IE(z^2) + z^2 IO(z^2), IE and IO with the
+  // coefficients of E and O over 2m+1 and 2m+2, E1 and O1 their values at 1), solved by a
+  // safeguarded Newton iteration in z. Costs no evaluation of the integrand and is
+  // accurate to about the interpolation error of the panel, so that one true Newton step
+  // finishes the job.
   [[nodiscard]] T interpolated_root(const T& a, const T& b, const T& qa, const T& qb, const node_rates& nodes,
                                     const T& level, int dir) const {
     using std::abs;
-    const legendre_table<T, points> lt = legendre_constants<T, points>();
-    // Even and odd parts of the node pairs (P_k(-x) = (-1)^k P_k(x)), then the Legendre
-    // coefficients of the rate by the discrete transform.
+    // Even and odd parts of the node pairs, then the coefficients of E and O.
     using halves = Eigen::Matrix<T, int(half_points), 1>;
     halves even;
     halves odd;
@@ -600,27 +614,46 @@ class hodograph_path {
       even(i) = centre ? nodes.plus[i] : T(nodes.plus[i] + nodes.minus[i]);
       odd(i) = centre ? T(0) : T(nodes.plus[i] - nodes.minus[i]);
     }
-    const auto& lm = legendre_transform_table<T, points>();
+    using table = power_interpolant<T, points>;
+    constexpr int ne = table::even_terms;
+    constexpr int no = table::odd_terms;
+    const auto& pm = power_interpolant_table<T, points>();
     const T scale = (b - a) / 2 / g_;
-    const Eigen::Matrix<T, int(points + 1) / 2, 1> ce = lm.even * even;
-    const Eigen::Matrix<T, int(points) / 2, 1> co = lm.odd * odd;
-    std::array<T, points> coef;
-    for (unsigned k = 0; k < points; ++k) coef[k] = scale * ((k & 1u) ? co(int(k / 2)) : ce(int(k / 2)));
-    // F(z) = dir (q(z) - level) and F'(z), increasing from F(-1) < 0 to F(1) >= 0.
+    const Eigen::Matrix<T, ne, 1> ce = scale * (pm.even * even);
+    const Eigen::Matrix<T, no, 1> co = scale * (pm.odd * odd);
+    std::array<T, ne> ie;
+    std::array<T, no> io;
+    T offset = qa - level;  // q(-1) - level, plus E1 - O1 below
+    for (int m = 0; m < ne; ++m) {
+      ie[std::size_t(m)] = ce(m) / T(2 * m + 1);
+      offset += ie[std::size_t(m)];
+    }
+    for (int m = 0; m < no; ++m) {
+      io[std::size_t(m)] = co(m) / T(2 * m + 2);
+      offset -= io[std::size_t(m)];
+    }
+    // F(z) = dir (q(z) - level) and F'(z), increasing from F(-1) < 0 to F(1) >= 0: four
+    // independent Horner chains in w = z^2.
     const auto eval = [&](const T& z, T& slope) {
-      T p_prev(1);
-      T p(z);
-      T value = coef[0] * (z + T(1));
-      slope = coef[0];
-      for (unsigned k = 1; k < points; ++k) {
-        const T p_next = lt.alpha[k] * z * p - lt.beta[k] * p_prev;
-        value += coef[k] * (p_next - p_prev) * lt.inv_odd[k];
-        slope += coef[k] * p;
-        p_prev = p;
-        p = p_next;
+      const T w = z * z;
+      T pe = ce(ne - 1);
+      T qe = ie[ne - 1];
+      for (int m = ne - 2; m >= 0; --m) {
+        pe = pe * w + ce(m);
+        qe = qe * w + ie[std::size_t(m)];
       }
-      slope *= T(dir);
-      return T(T(dir) * T(qa + value - level));
+      T po(0);
+      T qo(0);
+      if constexpr (no > 0) {
+        po = co(no - 1);
+        qo = io[no - 1];
+        for (int m = no - 2; m >= 0; --m) {
+          po = po * w + co(m);
+          qo = qo * w + io[std::size_t(m)];
+        }
+      }
+      slope = T(dir) * T(pe + z * po);
+      return T(T(dir) * T(offset + (z * qe + w * qo)));
     };
     T lo(-1);
     T hi(1);
