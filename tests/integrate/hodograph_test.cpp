@@ -520,6 +520,27 @@ TEST_CASE("a descent too deep for float is an error, not an overflow") {
   CHECK(d->speed == doctest::Approx(std::sqrt(9.80665 / 0.5)).epsilon(1e-12));
 }
 
+// A reference row's landing point in T, for the tests that reach it by its distance:
+// rows whose launch or landing is (near-)vertical are left out (there the distance hardly
+// moves), as are rows that land at the launch point.
+template <class T>
+struct landing_row {
+  T c, g, v, theta, height, distance;
+  double length;  // the flight's size: max(landing distance, |apex height|) [m]
+};
+template <class T>
+std::optional<landing_row<T>> landing_of(const reference_row& r) {
+  const double th_d = std::strtod(r[col::theta].c_str(), nullptr);
+  const double phi = std::strtod(r[col::phi_land].c_str(), nullptr);
+  if (std::abs(th_d) > 1.5 || phi < -1.5) return std::nullopt;
+  landing_row<T> l{parse<T>(r[col::c]),     parse<T>(r[col::g]), parse<T>(r[col::v0]),
+                   parse<T>(r[col::theta]), parse<T>(r[col::h]), parse<T>(r[col::x_land]), 0.0};
+  if (!(l.distance > T(0))) return std::nullopt;
+  l.length = std::fmax(std::strtod(r[col::x_land].c_str(), nullptr),
+                       std::abs(std::strtod(r[col::y_apex].c_str(), nullptr)));
+  return l;
+}
+
 // The distance search (hodograph_at_distance) against the same mpmath reference: at the
 // reference's landing distance the flight must be at the landing height at the landing
 // time. The distance given is rounded to T, and near a steep descent time and height are
@@ -535,19 +556,15 @@ TEST_CASE_TEMPLATE("the points at a distance and at a time match the mpmath refe
   double worst_time = 0, worst_rise = 0, worst_at_time = 0;
   int checked = 0;
   for (const reference_row& r : rows) {
-    const double th_d = std::strtod(r[col::theta].c_str(), nullptr);
-    const double phi = std::strtod(r[col::phi_land].c_str(), nullptr);
-    if (std::abs(th_d) > 1.5 || phi < -1.5) continue;  // (near-)vertical: the distance hardly moves
-    const T c = parse<T>(r[col::c]), g = parse<T>(r[col::g]), v = parse<T>(r[col::v0]);
-    const T th = parse<T>(r[col::theta]), hh = parse<T>(r[col::h]);
-    const T x = parse<T>(r[col::x_land]);
-    if (!(x > T(0))) continue;
+    const std::optional<landing_row<T>> l = landing_of<T>(r);
+    if (!l) continue;
+    const auto& [c, g, v, th, hh, x, length] = *l;
     const lob::result<hodograph_point<T>> p = hodograph_at_distance(c, g, v, th, x, never);
     REQUIRE_MESSAGE(p.has_value(), r[col::theta], " ", r[col::c], " ", r[col::h]);
+    const double phi = std::strtod(r[col::phi_land].c_str(), nullptr);
     const double xd = std::strtod(r[col::x_land].c_str(), nullptr);
     const double td = std::strtod(r[col::t_land].c_str(), nullptr);
     const double u = std::strtod(r[col::v_land].c_str(), nullptr) * std::cos(phi);
-    const double length = std::fmax(xd, std::abs(std::strtod(r[col::y_apex].c_str(), nullptr)));
     const double time_factor = 1 + xd / (u * td);
     const double rise_factor = 1 + std::abs(std::tan(phi)) * xd / length;
     const double et = rel_err(p->time, r[col::t_land]) / time_factor;
@@ -588,15 +605,9 @@ TEST_CASE_TEMPLATE("aiming at a reference point finds a launch elevation through
   double worst_miss = 0;
   int same = 0, other = 0, failed = 0;
   for (const reference_row& r : rows) {
-    const double th_d = std::strtod(r[col::theta].c_str(), nullptr);
-    const double phi = std::strtod(r[col::phi_land].c_str(), nullptr);
-    if (std::abs(th_d) > 1.5 || phi < -1.5) continue;  // (near-)vertical: the distance hardly moves
-    const T c = parse<T>(r[col::c]), g = parse<T>(r[col::g]), v = parse<T>(r[col::v0]);
-    const T th = parse<T>(r[col::theta]), hh = parse<T>(r[col::h]);
-    const T x = parse<T>(r[col::x_land]);
-    if (!(x > T(0))) continue;
-    const double length = std::fmax(std::strtod(r[col::x_land].c_str(), nullptr),
-                                    std::abs(std::strtod(r[col::y_apex].c_str(), nullptr)));
+    const std::optional<landing_row<T>> l = landing_of<T>(r);
+    if (!l) continue;
+    const auto& [c, g, v, th, hh, x, length] = *l;
     const T guess = th + T(1) / T(100);
     const lob::result<hodograph_point<T>> trial = hodograph_at_distance(c, g, v, guess, x, never);
     const std::optional<T> inclination = trial ? std::optional<T>(trial->inclination) : std::nullopt;

@@ -486,8 +486,9 @@ class hodograph_path {
   template <int M>
   [[nodiscard]] static Eigen::Array<T, M, 1> expm1_all(const Eigen::Array<T, M, 1>& z) {
     if constexpr (std::is_floating_point_v<T>) {
-      if (z.maxCoeff() <= T(1)) return expm1_unit(z);
-      if (z.maxCoeff() <= T(2)) {
+      const T largest = z.maxCoeff();
+      if (largest <= T(1)) return expm1_unit(z);
+      if (largest <= T(2)) {
         // e^z - 1 = e2 (2 + e2) with e2 = e^(z/2) - 1: relative-accurate, no cancellation.
         const Eigen::Array<T, M, 1> e2 = expm1_unit(Eigen::Array<T, M, 1>(z / 2));
         return e2 * (T(2) + e2);
@@ -496,15 +497,15 @@ class hodograph_path {
     return z.unaryExpr([](const T& y) { return T(detail::expm1(y)); });
   }
 
-  // Sums from the launch to tau_e for aiming: (t, x, y), and the integrals x4 and y4 of
-  // u^3 v / g and u^3 v sinh(sigma) / g, from which hodograph_aim forms the derivatives of
-  // x and y with respect to the launch elevation (see there).
+  // Sums from the launch to tau_e for aiming: (t, x, y), and (with `derivatives`) the
+  // integrals x4 and y4 of u^3 v / g and u^3 v sinh(sigma) / g, from which hodograph_aim
+  // forms the derivatives of x and y with respect to the launch elevation (see there).
   struct aim_sums {
     hodograph_sums<T> s{T(0)};
     T x4{};
     T y4{};
   };
-  [[nodiscard]] result<aim_sums> aim_sums_to(const T& tau_e) const {
+  [[nodiscard]] result<aim_sums> aim_sums_to(const T& tau_e, bool derivatives = true) const {
     aim_sums out;
     T a(0);
     for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
@@ -515,11 +516,13 @@ class hodograph_path {
       const nodes rt = p.u * p.cosh_sigma;
       const nodes rx = p.u * rt;
       const nodes ry = rx * p.sinh_sigma;
-      const nodes u2 = p.u.square();
       const T w = p.half / g_;
       out.s += hodograph_sums<T>(p.sum(rt), p.sum(rx), p.sum(ry)) * w;
-      out.x4 += T(p.sum(nodes(rx * u2)) * w);
-      out.y4 += T(p.sum(nodes(ry * u2)) * w);
+      if (derivatives) {
+        const nodes u2 = p.u.square();
+        out.x4 += T(p.sum(nodes(rx * u2)) * w);
+        out.y4 += T(p.sum(nodes(ry * u2)) * w);
+      }
       a = b;
     }
     return fail(errc::no_convergence, "aim sums need more quadrature panels than allowed, tau =", tau_e);
@@ -1069,7 +1072,7 @@ template <Real T>
       const hodograph_path<T> end(c, g, v0, theta);
       const T tau_end = end.sigma0() - sigma_e;
       if (!(tau_end >= T(0) && tau_end <= end.tau_max())) break;
-      const result<typename hodograph_path<T>::aim_sums> e = end.aim_sums_to(tau_end);
+      const result<typename hodograph_path<T>::aim_sums> e = end.aim_sums_to(tau_end, false);
       if (!e) return unexpected<error>(e.error());
       return hodograph_aim_root<T>{theta, T(det / rx), end.point(tau_end, e->s)};
     }
