@@ -289,6 +289,15 @@ class dp5_dense {
                         d5 * k.k5.velocity + d6 * k.k6.velocity + d7 * k.k7.velocity);
   }
 
+  /// The interpolated position alone at time `t` in [t0, t0 + h] (what event functions
+  /// on heights and distances need: half the work of the whole phase).
+  [[nodiscard]] vec3<T> position(const T& t) const {
+    const T th = (t - t0_) / h_;
+    const T th1 = T(1) - th;
+    return vec3<T>(y0_.position +
+                   th * (diff_.position + th1 * (bspl_.position + th * (r4_.position + th1 * r5_.position))));
+  }
+
   /// The interpolated phase at time `t` in [t0, t0 + h].
   [[nodiscard]] phase<T> operator()(const T& t) const {
     const T th = (t - t0_) / h_;

@@ -51,6 +51,18 @@ class hermite_piece {
                 const phase<T>& f1)
       : t0_(t0), h_(h), y0_(y0), f0_(f0), y1_(y1), f1_(f1) {}
 
+  /// The interpolated position alone at time `t`.
+  [[nodiscard]] vec3<T> position(const T& t) const {
+    const T s = (t - t0_) / h_;
+    const T s2 = s * s;
+    const T s3 = s2 * s;
+    const T h00 = T(2) * s3 - T(3) * s2 + T(1);
+    const T h10 = s3 - T(2) * s2 + s;
+    const T h01 = T(-2) * s3 + T(3) * s2;
+    const T h11 = s3 - s2;
+    return vec3<T>(h00 * y0_.position + (h10 * h_) * f0_.position + h01 * y1_.position + (h11 * h_) * f1_.position);
+  }
+
   [[nodiscard]] phase<T> operator()(const T& t) const {
     const T s = (t - t0_) / h_;
     const T s2 = s * s;

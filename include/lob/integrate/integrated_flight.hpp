@@ -139,7 +139,7 @@ class integrated_flight {
     }
     result<state<T>> out = fail(errc::no_convergence, "height crossing was not reached");
     const status walked = walk([&](const auto& p) {
-      const auto f = [&](const T& s) { return T(up_.dot(p.at(s).position) - dh); };
+      const auto f = [&](const T& s) { return T(up_.dot(p.position_at(s)) - dh); };
       if (branch == side::rising) {
         if (p.branch != tag::rising) return false;
         const T fa = f(p.t0);
@@ -204,7 +204,7 @@ class integrated_flight {
     }
     result<state<T>> out = fail(errc::no_convergence, "distance was not reached");
     const status walked = walk([&](const auto& p) {
-      const auto f = [&](const T& s) { return T(level_distance(p.at(s).position) - distance); };
+      const auto f = [&](const T& s) { return T(level_distance(p.position_at(s)) - distance); };
       const T fa = f(p.t0);
       const T fb = f(p.t1);
       if (!(fa < T(0) && fb >= T(0))) return false;
@@ -274,6 +274,12 @@ class integrated_flight {
       if (!dense) dense.emplace(t0, T(t1 - t0), y0, y1, k);
       return (*dense)(t);
     }
+    [[nodiscard]] vec3<T> position_at(const T& t) const {
+      if (t == t1) return y1.position;
+      if (t == t0) return y0.position;
+      if (!dense) dense.emplace(t0, T(t1 - t0), y0, y1, k);
+      return dense->position(t);
+    }
   };
 
   // A fixed step, or the part of one before or after the apex, over its Hermite interpolant.
@@ -288,6 +294,11 @@ class integrated_flight {
       if (t == t1) return y1;
       if (t == t0) return y0;
       return curve(t);
+    }
+    [[nodiscard]] vec3<T> position_at(const T& t) const {
+      if (t == t1) return y1.position;
+      if (t == t0) return y0.position;
+      return curve.position(t);
     }
   };
 
@@ -561,7 +572,7 @@ class integrated_flight {
     }
     result<state<T>> out = fail(errc::no_convergence, "height crossing was not reached");
     const status walked = walk([&](const auto& p) {
-      const auto f = [&](const T& s) { return T(up_.dot(p.at(s).position) - dh); };
+      const auto f = [&](const T& s) { return T(up_.dot(p.position_at(s)) - dh); };
       const T fa = f(p.t0);
       const T fb = f(p.t1);
       const bool rises_at_end = T(up_.dot(p.y1.velocity)) >= T(0);
