@@ -51,34 +51,33 @@ class hermite_piece {
                 const phase<T>& f1)
       : t0_(t0), h_(h), y0_(y0), f0_(f0), y1_(y1), f1_(f1) {}
 
-  /// The interpolated position alone at time `t`.
+  /// The interpolated position alone at time `t` (what event functions need).
   [[nodiscard]] vec3<T> position(const T& t) const {
-    const T s = (t - t0_) / h_;
-    const T s2 = s * s;
-    const T s3 = s2 * s;
-    const T h00 = T(2) * s3 - T(3) * s2 + T(1);
-    const T h10 = s3 - T(2) * s2 + s;
-    const T h01 = T(-2) * s3 + T(3) * s2;
-    const T h11 = s3 - s2;
-    return vec3<T>(h00 * y0_.position + (h10 * h_) * f0_.position + h01 * y1_.position + (h11 * h_) * f1_.position);
+    const weights w = basis(t);
+    return vec3<T>(w.h00 * y0_.position + w.h10 * f0_.position + w.h01 * y1_.position + w.h11 * f1_.position);
   }
 
   [[nodiscard]] phase<T> operator()(const T& t) const {
-    const T s = (t - t0_) / h_;
-    const T s2 = s * s;
-    const T s3 = s2 * s;
-    // The four cubic Hermite basis polynomials on [0, 1].
-    const T h00 = T(2) * s3 - T(3) * s2 + T(1);
-    const T h10 = s3 - T(2) * s2 + s;
-    const T h01 = T(-2) * s3 + T(3) * s2;
-    const T h11 = s3 - s2;
+    const weights w = basis(t);
     phase<T> y;
-    y.position = h00 * y0_.position + (h10 * h_) * f0_.position + h01 * y1_.position + (h11 * h_) * f1_.position;
-    y.velocity = h00 * y0_.velocity + (h10 * h_) * f0_.velocity + h01 * y1_.velocity + (h11 * h_) * f1_.velocity;
+    y.position = w.h00 * y0_.position + w.h10 * f0_.position + w.h01 * y1_.position + w.h11 * f1_.position;
+    y.velocity = w.h00 * y0_.velocity + w.h10 * f0_.velocity + w.h01 * y1_.velocity + w.h11 * f1_.velocity;
     return y;
   }
 
  private:
+  // The four cubic Hermite basis polynomials on [0, 1] at s = (t - t0)/h, the slope ones times h.
+  struct weights {
+    T h00, h10, h01, h11;
+  };
+  [[nodiscard]] weights basis(const T& t) const {
+    const T s = (t - t0_) / h_;
+    const T s2 = s * s;
+    const T s3 = s2 * s;
+    return {T(T(2) * s3 - T(3) * s2 + T(1)), T(T(s3 - T(2) * s2 + s) * h_), T(T(-2) * s3 + T(3) * s2),
+            T(T(s3 - s2) * h_)};
+  }
+
   T t0_;
   T h_;
   phase<T> y0_, f0_, y1_, f1_;
