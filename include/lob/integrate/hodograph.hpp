@@ -581,21 +581,30 @@ class hodograph_path {
 
   // The point where quantity `q` (rise or distance) reaches `level`, searched panel by
   // panel from (a, s) in the direction `dir` (+1: q increases with tau, as the rise does
-  // on the ascent and the distance always; -1: the rise on the descent), up to tau = end.
+  // on the ascent and the distance always; -1: the rise on the descent), up to tau = end,
+  // and (when given) up to the time `max_time` [s]: beyond it `time_limit`.
   [[nodiscard]] result<hodograph_point<T>> search(T a, hodograph_sums<T> s, const T& level, int dir,
                                                   const T& end,
-                                                  T hodograph_sums<T>::*q = &hodograph_sums<T>::rise) const {
+                                                  T hodograph_sums<T>::*q = &hodograph_sums<T>::rise,
+                                                  const std::optional<T>& max_time = std::nullopt) const {
     node_rates nodes;
     for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
       T b = k == 0 ? next_break_merged(a) : next_break(a);
       if (b > end) b = end;
       const hodograph_sums<T> sb = s + integral(a, b, &nodes, q);
-      if (T(dir) * T(sb.*q - level) >= T(0)) return polish(a, s, b, sb, nodes, level, dir, q);
+      if (T(dir) * T(sb.*q - level) >= T(0)) {
+        const result<hodograph_point<T>> p = polish(a, s, b, sb, nodes, level, dir, q);
+        if (p && max_time && p->time > *max_time)
+          return fail(errc::time_limit, "the point is reached after max_time, at t =", p->time);
+        return p;
+      }
+      if (max_time && sb.time > *max_time)
+        return fail(errc::time_limit, "the point is not reached within max_time =", *max_time);
       if (b == end) break;
       a = b;
       s = sb;
     }
-    return fail(errc::no_convergence, "the crossing lies beyond the quadrature's reach, at", level);
+    return fail(errc::no_convergence, "the point lies beyond the quadrature's reach, at", level);
   }
 
   // The root of the panel's interpolant of q: q(z) = q_a + (half/g) int_-1^z p, with p
@@ -715,7 +724,7 @@ class hodograph_path {
     using std::abs;
     using std::min;
     const T eps = epsilon<T>();
-    if (sb.*q == level) return finish(b, sb, rates(b), level, q);
+    if (sb.*q == level) return finish(sb, rates(b), level, q);
     T lo = a;
     T hi = b;
     T tau = interpolated_root(a, b, sa.*q, sb.*q, nodes, level, dir);
@@ -725,7 +734,7 @@ class hodograph_path {
     T last_delta = b - a;
     for (int i = 0; i < 100; ++i) {
       const T f = T(dir) * T(s.*q - level);  // increasing in tau on [lo, hi]
-      if (f == T(0)) return finish(tau, s, r, level, q);
+      if (f == T(0)) return finish(s, r, level, q);
       if (f < T(0))
         lo = tau;
       else
@@ -736,14 +745,14 @@ class hodograph_path {
         const T delta = f / slope;
         // Converged when the step is below rounding, or stops shrinking once it is tiny
         // (rounding in q, not distance to the root, drives it).
-        if (abs(delta) <= 2 * eps * abs(tau)) return finish(tau, s, r, level, q);
+        if (abs(delta) <= 2 * eps * abs(tau)) return finish(s, r, level, q);
         if (abs(delta) <= eps * T(1024) * (b - a) && abs(delta) > abs(last_delta) / 4)
-          return finish(tau, s, r, level, q);
+          return finish(s, r, level, q);
         last_delta = delta;
         const T newton = tau - delta;
         if (newton > lo && newton < hi) next = newton;
       }
-      if (!(hi - lo > 2 * eps * abs(tau))) return finish(tau, s, r, level, q);
+      if (!(hi - lo > 2 * eps * abs(tau))) return finish(s, r, level, q);
       const T step = next - tau;
       if (abs(step) <= T(min(T(tau - a), T(b - tau)) / T(100000))) {
         const hodograph_sums<T> r_next = rates(next);
@@ -760,7 +769,7 @@ class hodograph_path {
 
   // The point at tau from its sums and rates (speed v = g dt/dtau, tan of the inclination
   // sinh(sigma) = dy/dx), with quantity q set to the level it was solved for.
-  [[nodiscard]] hodograph_point<T> finish(const T&, const hodograph_sums<T>& s, const hodograph_sums<T>& r,
+  [[nodiscard]] hodograph_point<T> finish(const hodograph_sums<T>& s, const hodograph_sums<T>& r,
                                           const T& level, T hodograph_sums<T>::*q) const {
     using std::atan;
     hodograph_point<T> p{s.time, s.distance, s.rise, r.time, T(atan(T(r.rise / r.distance)))};
@@ -934,28 +943,8 @@ template <Real T>
                                                                   const T& theta0, const T& level,
                                                                   T hodograph_sums<T>::*q,
                                                                   const T& max_time) {
-  using path_t = hodograph_path<T>;
-  const path_t path(c, g, v0, theta0);
-  typename path_t::node_rates nodes;
-  hodograph_sums<T> s(T(0));
-  T a(0);
-  for (int k = 0; k < hodograph_rule<T>::max_panels; ++k) {
-    T b = path.next_break(a);
-    if (b > path.tau_max()) b = path.tau_max();
-    const hodograph_sums<T> sb = s + path.integral(a, b, &nodes, q);
-    if (sb.*q >= level) {
-      const result<hodograph_point<T>> p = path.polish(a, s, b, sb, nodes, level, +1, q);
-      if (p && p->time > max_time)
-        return fail(errc::time_limit, "the point is reached after max_time, at t =", p->time);
-      return p;
-    }
-    if (sb.time > max_time)
-      return fail(errc::time_limit, "the point is not reached within max_time =", max_time);
-    if (b == path.tau_max()) break;
-    a = b;
-    s = sb;
-  }
-  return fail(errc::no_convergence, "the point lies beyond the quadrature's reach", level);
+  const hodograph_path<T> path(c, g, v0, theta0);
+  return path.search(T(0), hodograph_sums<T>(T(0)), level, +1, path.tau_max(), q, max_time);
 }
 
 /// Where a flight under a = g - c |v| v in still air first reaches the horizontal distance
