@@ -258,8 +258,10 @@ template <Real T, unsigned N>
 /// - k P_k-1)/(k+1)). Powers of z are ill-conditioned for high degree in general, but the
 /// Legendre coefficients of a panel's smooth rates fall off like rho^-k, so the large
 /// power coefficients of the high P_k carry little weight: the interpolant is used only
-/// to start a Newton iteration on the true integral (see interpolated_root), where an
-/// error of eps times those coefficients (about 1e-11 relative in double) is harmless.
+/// to start a Newton iteration on the true integral (see interpolated_root), where the
+/// rounding of the power form is harmless: 3e-11 to 4e-10 of the largest node rate in
+/// double against the Legendre form in long double, measured on four panels (launch and
+/// descent, light to heavy drag); the true Newton step squares it.
 /// The gain: E and O are two short Horner chains in z^2, about a quarter of the
 /// dependent steps of the Legendre recurrence.
 template <Real T, unsigned N>
