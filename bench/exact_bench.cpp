@@ -257,8 +257,9 @@ landing_out<double> odeint_landing(const input& in) {
     return s[1];
   };
   std::uintmax_t iterations = 100;
-  const std::pair<double, double> r = boost::math::tools::toms748_solve(
-      z_at, stepper.previous_time(), stepper.current_time(), boost::math::tools::eps_tolerance<double>(50), iterations);
+  const std::pair<double, double> r =
+      boost::math::tools::toms748_solve(z_at, stepper.previous_time(), stepper.current_time(),
+                                        boost::math::tools::eps_tolerance<double>(50), iterations);
   const double t = (r.first + r.second) / 2;
   stepper.calc_state(t, s);
   return {t, std::abs(s[0]), std::sqrt(s[2] * s[2] + s[3] * s[3])};
@@ -281,7 +282,8 @@ void landing_errors(benchmark::State& state, const prepared<T>& p, landing_out<T
   double worst = 0;
   for (std::size_t i = 0; i < n_cases; ++i) {
     const landing_out<T> o = f(p.in[i]);
-    worst = std::max({worst, rel(double(o.time), p.ref[i].land_time), rel(double(o.speed), p.ref[i].land_speed)});
+    worst =
+        std::max({worst, rel(double(o.time), p.ref[i].land_time), rel(double(o.speed), p.ref[i].land_speed)});
   }
   state.counters["max_rel_err"] = worst;
 }
@@ -485,8 +487,9 @@ void register_type() {
                                  [w](benchmark::State& st) { bm_landing_prebuilt<T>(st, w); });
     benchmark::RegisterBenchmark((g + "_landing" + tail + "/lob_with_make").c_str(),
                                  [w](benchmark::State& st) { bm_landing_lob<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "_landing" + tail + (w == set::vacuum ? "/naive_closed_form" : "/naive_lambert_w")).c_str(),
-                                 [w](benchmark::State& st) { bm_landing_naive<T>(st, w); });
+    benchmark::RegisterBenchmark(
+        (g + "_landing" + tail + (w == set::vacuum ? "/naive_closed_form" : "/naive_lambert_w")).c_str(),
+        [w](benchmark::State& st) { bm_landing_naive<T>(st, w); });
     if (std::is_same_v<T, double> && w == set::typical)
       benchmark::RegisterBenchmark((g + "_landing" + tail + "/odeint_dopri5").c_str(),
                                    [w](benchmark::State& st) { bm_landing_odeint(st, w); });
@@ -494,8 +497,9 @@ void register_type() {
                                  [w](benchmark::State& st) { bm_range_prebuilt<T>(st, w); });
     benchmark::RegisterBenchmark((g + "_range" + tail + "/lob_with_make").c_str(),
                                  [w](benchmark::State& st) { bm_range<T>(st, w, false); });
-    benchmark::RegisterBenchmark((g + "_range" + tail + (w == set::vacuum ? "/naive_closed_form" : "/naive_lambert_w")).c_str(),
-                                 [w](benchmark::State& st) { bm_range<T>(st, w, true); });
+    benchmark::RegisterBenchmark(
+        (g + "_range" + tail + (w == set::vacuum ? "/naive_closed_form" : "/naive_lambert_w")).c_str(),
+        [w](benchmark::State& st) { bm_range<T>(st, w, true); });
     if (std::is_same_v<T, double> && w == set::typical)
       benchmark::RegisterBenchmark((g + "_range" + tail + "/odeint_dopri5").c_str(),
                                    [w](benchmark::State& st) { bm_range_odeint(st, w); });
@@ -505,7 +509,8 @@ void register_type() {
                                  [w](benchmark::State& st) { bm_apex<T>(st, w, false); });
     benchmark::RegisterBenchmark((g + "_apex" + tail + "/naive_closed_form").c_str(),
                                  [w](benchmark::State& st) { bm_apex<T>(st, w, true); });
-    benchmark::RegisterBenchmark((g + "_at" + tail + "/lob").c_str(), [w](benchmark::State& st) { bm_at<T>(st, w, false); });
+    benchmark::RegisterBenchmark((g + "_at" + tail + "/lob").c_str(),
+                                 [w](benchmark::State& st) { bm_at<T>(st, w, false); });
     benchmark::RegisterBenchmark((g + "_at" + tail + "/naive_closed_form").c_str(),
                                  [w](benchmark::State& st) { bm_at<T>(st, w, true); });
   }
@@ -514,11 +519,15 @@ void register_type() {
   for (const named& s : weak) {
     const std::string g = std::string(s.name) + "_" + type_name<T>();
     const set w = s.which;
-    benchmark::RegisterBenchmark((g + "/lob").c_str(), [w](benchmark::State& st) { bm_landing_prebuilt<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "/lob_with_make").c_str(), [w](benchmark::State& st) { bm_landing_lob<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "/naive_lambert_w").c_str(), [w](benchmark::State& st) { bm_landing_naive<T>(st, w); });
+    benchmark::RegisterBenchmark((g + "/lob").c_str(),
+                                 [w](benchmark::State& st) { bm_landing_prebuilt<T>(st, w); });
+    benchmark::RegisterBenchmark((g + "/lob_with_make").c_str(),
+                                 [w](benchmark::State& st) { bm_landing_lob<T>(st, w); });
+    benchmark::RegisterBenchmark((g + "/naive_lambert_w").c_str(),
+                                 [w](benchmark::State& st) { bm_landing_naive<T>(st, w); });
     if (std::is_same_v<T, double>)
-      benchmark::RegisterBenchmark((g + "/odeint_dopri5").c_str(), [w](benchmark::State& st) { bm_landing_odeint(st, w); });
+      benchmark::RegisterBenchmark((g + "/odeint_dopri5").c_str(),
+                                   [w](benchmark::State& st) { bm_landing_odeint(st, w); });
   }
 }
 

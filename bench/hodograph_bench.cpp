@@ -75,7 +75,8 @@ T odeint_range(const ball_inputs<T>& b, T tol) {
     du[3] = -g - c * s * u[3];
   };
   auto stepper = ode::make_dense_output(tol, tol, ode::runge_kutta_dopri5<state, T>());
-  stepper.initialize(state{T(0), T(0), b.v0 * std::cos(b.theta), b.v0 * std::sin(b.theta)}, T(0), T(1) / T(100));
+  stepper.initialize(state{T(0), T(0), b.v0 * std::cos(b.theta), b.v0 * std::sin(b.theta)}, T(0),
+                     T(1) / T(100));
   for (int i = 0; i < 100000; ++i) {
     stepper.do_step(rhs);
     const state& now = stepper.current_state();
@@ -87,8 +88,9 @@ T odeint_range(const ball_inputs<T>& b, T tol) {
     return tmp[1];
   };
   std::uintmax_t iterations = 60;
-  const std::pair<T, T> r = boost::math::tools::toms748_solve(height, stepper.previous_time(), stepper.current_time(),
-                                                              boost::math::tools::eps_tolerance<T>(), iterations);
+  const std::pair<T, T> r =
+      boost::math::tools::toms748_solve(height, stepper.previous_time(), stepper.current_time(),
+                                        boost::math::tools::eps_tolerance<T>(), iterations);
   stepper.calc_state((r.first + r.second) / 2, tmp);
   return tmp[0];
 }

@@ -113,8 +113,9 @@ double odeint_range(const ball& b, double tol) {
         return x[2];
       };
       std::uintmax_t it = 100;
-      const auto r = boost::math::tools::toms748_solve(height, stepper.previous_time(), stepper.current_time(),
-                                                       boost::math::tools::eps_tolerance<double>(), it);
+      const auto r =
+          boost::math::tools::toms748_solve(height, stepper.previous_time(), stepper.current_time(),
+                                            boost::math::tools::eps_tolerance<double>(), it);
       stepper.calc_state((r.first + r.second) / 2, x);
       return std::hypot(x[0], x[1]);
     }

@@ -206,8 +206,9 @@ double true_miss(const M& model, double elevation, double azimuth, const vec& ta
 template <class M>
 double true_range(const M& model, double elevation, double landing_h) {
   const lob::medium<double> air;
-  const auto f = lob::fly(model, air, lob::shot<double>{vec::Zero(), lob::launch_velocity(aim_speed, elevation)},
-                          reference_options());
+  const auto f =
+      lob::fly(model, air, lob::shot<double>{vec::Zero(), lob::launch_velocity(aim_speed, elevation)},
+               reference_options());
   if (!f) return 0;
   const auto r = f->range(landing_h);
   return r ? *r : 0.0;
@@ -242,7 +243,8 @@ void aim_lob(benchmark::State& state, M model) {
   std::size_t i = 0;
   int failures = 0;
   for (auto _ : state) {
-    const auto s = lob::aim(model, air, lob::aim_request<double>{vec::Zero(), set.targets[i], aim_speed}, opts);
+    const auto s =
+        lob::aim(model, air, lob::aim_request<double>{vec::Zero(), set.targets[i], aim_speed}, opts);
     if (!s) ++failures;
     benchmark::DoNotOptimize(s);
     i = (i + 1) % problem_count;
@@ -274,7 +276,8 @@ void aim_odeint(benchmark::State& state, M model, int kind) {
   for (std::size_t j = 0; j < 8; ++j) {  // the scan is slow; 8 targets judge it
     const vec& t = set.targets[j];
     const ode_aim a = ode_scan_aim(kind, t);
-    worst = std::max({worst, true_miss(model, a.flat, a.azimuth, t), true_miss(model, a.lofted, a.azimuth, t)});
+    worst =
+        std::max({worst, true_miss(model, a.flat, a.azimuth, t), true_miss(model, a.lofted, a.azimuth, t)});
   }
   state.counters["max_miss_m"] = worst;
 }
@@ -287,16 +290,15 @@ void farthest_lob(benchmark::State& state, M model) {
   const lob::solve_options<double> opts = lob_options();
   std::size_t i = 0;
   for (auto _ : state) {
-    const auto s = lob::farthest_elevation(model, air,
-                                           lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, landing_heights[i]},
-                                           opts);
+    const auto s = lob::farthest_elevation(
+        model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, landing_heights[i]}, opts);
     benchmark::DoNotOptimize(s);
     i = (i + 1) % landing_heights.size();
   }
   double worst = 0;
   for (const double h : landing_heights) {
-    const auto s =
-        lob::farthest_elevation(model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, h}, opts);
+    const auto s = lob::farthest_elevation(
+        model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, h}, opts);
     const double best = reference_best_range(model, h);
     worst = std::max(worst, s ? std::abs(true_range(model, s->elevation, h) - best) / best : INFINITY);
   }
@@ -325,9 +327,13 @@ const lob::linear_drag<double> linear_model{linear_rate};
 const lob::quadratic_drag<double> quadratic_model{quadratic_coefficient};
 
 BENCHMARK_CAPTURE(aim_lob, vacuum, vacuum_model)->Name("aim_vacuum_double/lob");
-BENCHMARK_CAPTURE(aim_odeint, vacuum, vacuum_model, 0)->Name("aim_vacuum_double/odeint_scan_bisect")->Iterations(20);
+BENCHMARK_CAPTURE(aim_odeint, vacuum, vacuum_model, 0)
+    ->Name("aim_vacuum_double/odeint_scan_bisect")
+    ->Iterations(20);
 BENCHMARK_CAPTURE(aim_lob, linear, linear_model)->Name("aim_linear_double/lob");
-BENCHMARK_CAPTURE(aim_odeint, linear, linear_model, 1)->Name("aim_linear_double/odeint_scan_bisect")->Iterations(20);
+BENCHMARK_CAPTURE(aim_odeint, linear, linear_model, 1)
+    ->Name("aim_linear_double/odeint_scan_bisect")
+    ->Iterations(20);
 BENCHMARK_CAPTURE(aim_lob, quadratic, quadratic_model)->Name("aim_quadratic_double/lob");
 BENCHMARK_CAPTURE(aim_odeint, quadratic, quadratic_model, 2)
     ->Name("aim_quadratic_double/odeint_scan_bisect")

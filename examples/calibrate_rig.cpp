@@ -62,14 +62,16 @@ int main() {
       frames[f].push_back({t, seen});
     }
     // What the bench believes: the nominal setting.
-    const lob::shot<double> nominal{muzzle, lob::launch_velocity(21.0, lob::deg(35.0), lob::deg(azimuth_deg[f]))};
+    const lob::shot<double> nominal{muzzle,
+                                    lob::launch_velocity(21.0, lob::deg(35.0), lob::deg(azimuth_deg[f]))};
     flights.push_back({nominal, frames[f]});
   }
 
   // Fit c of quadratic drag, started from the advised Cd, with each flight's speed and
   // elevation, under a Cauchy loss of scale 3 noise sigmas (it lets gross outliers go
   // entirely, where a Huber loss would still pull by its scale).
-  const lob::result<lob::quadratic_drag<double>> start = lob::make_quadratic_drag(pellet, *air, advice->quadratic_cd);
+  const lob::result<lob::quadratic_drag<double>> start =
+      lob::make_quadratic_drag(pellet, *air, advice->quadratic_cd);
   if (!start) return 1;
   lob::fit_options<double> options;
   options.fit_speed = true;
@@ -98,7 +100,8 @@ int main() {
     std::snprintf(name, sizeof name, "flight %d speed [m/s]", f + 1);
     row(name, true_speed[f], fit->speeds[f], fit->speed_errors[f]);
     std::snprintf(name, sizeof name, "flight %d elevation [deg]", f + 1);
-    row(name, true_elevation_deg[f], lob::to_degrees(fit->elevations[f]), lob::to_degrees(fit->elevation_errors[f]));
+    row(name, true_elevation_deg[f], lob::to_degrees(fit->elevations[f]),
+        lob::to_degrees(fit->elevation_errors[f]));
   }
   std::printf("rms residual %.4f m, noise estimate %.4f m, %lld evaluations\n", fit->rms, fit->noise_sigma,
               static_cast<long long>(fit->evaluations));

@@ -110,8 +110,10 @@ int main(int argc, char** argv) {
                 "(%.2f s).\n", lob::to_degrees(shots->flat->elevation), shots->flat->time_of_flight,
                 lob::to_degrees(shots->lofted->elevation), shots->lofted->time_of_flight);
   }
-  std::printf("Keep people outside %.1f m of the machine while it runs (the farthest landing in vacuum,\n"
-              "wider than any of the drag models reaches in still air); follow your site's own safety rules.\n", far[0].range);
+  std::printf(
+      "Keep people outside %.1f m of the machine while it runs (the farthest landing in vacuum,\n"
+      "wider than any of the drag models reaches in still air); follow your site's own safety rules.\n",
+      far[0].range);
 
   const char* picture = argc > 1 ? argv[1] : "training_ground.svg";
   std::FILE* svg = std::fopen(picture, "w");

@@ -36,7 +36,8 @@ struct foam_ball {
 
 int main() {
   static_assert(lob::DragModel<foam_ball>, "foam_ball satisfies the drag-model concept");
-  const foam_ball ball{.mass = 0.045, .area = 0.0044, .density = 1.2, .drag_coefficient = &foam_drag_coefficient};
+  const foam_ball ball{
+      .mass = 0.045, .area = 0.0044, .density = 1.2, .drag_coefficient = &foam_drag_coefficient};
 
   lob::shot<double> launch;
   launch.position = lob::vec3<double>(0, 0, 1.2);
@@ -62,7 +63,7 @@ int main() {
   std::array<lob::state<double>, 6> path;
   const auto n = flight->sample(path, land->time);
   for (std::size_t i = 0; i < n.value_or(0); ++i)
-    std::printf("  t %.3f  x %.3f  y %.3f  z %.3f\n", path[i].time, path[i].position.x(), path[i].position.y(),
-                path[i].position.z());
+    std::printf("  t %.3f  x %.3f  y %.3f  z %.3f\n", path[i].time, path[i].position.x(),
+                path[i].position.y(), path[i].position.z());
   return 0;
 }

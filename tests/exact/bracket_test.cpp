@@ -142,17 +142,21 @@ void check_random(int count, double tolerance) {
                            rel(mp100(*top), r.apex_rise), rel(mp100(lob::speed(*land)), r.landing_speed)};
     for (int i = 0; i < 4; ++i) worst[i] = errs[i] > worst[i] ? errs[i] : worst[i];
   }
-  MESSAGE("digits " << std::numeric_limits<T>::digits << ", " << count << " random flights, max relative errors: time "
-                    << worst[0] << ", range " << worst[1] << ", apex height " << worst[2] << ", landing speed "
-                    << worst[3]);
+  MESSAGE("digits " << std::numeric_limits<T>::digits << ", " << count
+                    << " random flights, max relative errors: time " << worst[0] << ", range " << worst[1]
+                    << ", apex height " << worst[2] << ", landing speed " << worst[3]);
   for (const mp100& w : worst) CHECK(w <= mp100(tolerance));
 }
 
 }  // namespace
 
-TEST_CASE("float holds 1e-5 against a bracketing root of the explicit path") { check_random<float>(400, 1e-5); }
+TEST_CASE("float holds 1e-5 against a bracketing root of the explicit path") {
+  check_random<float>(400, 1e-5);
+}
 
-TEST_CASE("double holds 1e-14 against a bracketing root of the explicit path") { check_random<double>(400, 1e-14); }
+TEST_CASE("double holds 1e-14 against a bracketing root of the explicit path") {
+  check_random<double>(400, 1e-14);
+}
 
 TEST_CASE("long double holds 1e-17 against a bracketing root of the explicit path") {
   check_random<long double>(300, 1e-17);

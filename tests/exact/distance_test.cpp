@@ -36,13 +36,15 @@ T rel(const T& a, const T& b) {
 
 }  // namespace
 
-TEST_CASE_TEMPLATE("in still air the distance is reached at -log1p(-k d/u)/k", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("in still air the distance is reached at -log1p(-k d/u)/k", T, float, double, long double,
+                   mp50) {
   const T eps = std::numeric_limits<T>::epsilon();
   // Reference: the same time from the explicit expression -log(1 - k d/u)/k in 100 digits
   // (a different formulation: a plain log, whose cancellation 100 digits absorb).
   for (const char* kstr : {"0", "1e-12", "1e-6", "0.01", "0.3", "7"}) {
     const T k = T(mp50(kstr));
-    const lob::linear_flight<T> f = make_flight<T>(k, lob::vec3<T>(T(30), T(40), T(12)), lob::vec3<T>::Zero());
+    const lob::linear_flight<T> f =
+        make_flight<T>(k, lob::vec3<T>(T(30), T(40), T(12)), lob::vec3<T>::Zero());
     const T limit = k == T(0) ? T(1e30) : T(T(50) / k);
     const T d = limit < T(600) ? T(limit * T(3) / T(4)) : T(600);
     const lob::result<lob::state<T>> s = f.at_distance(d);
@@ -121,7 +123,8 @@ TEST_CASE("with a tailwind or crosswind the distance grows and is reached once")
   CHECK(worst <= 1e-13);
 }
 
-TEST_CASE_TEMPLATE("the apex height equals the height of the apex state", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("the apex height equals the height of the apex state", T, float, double, long double,
+                   mp50) {
   const T eps = std::numeric_limits<T>::epsilon();
   for (const char* kstr : {"0", "1e-9", "0.05", "3", "200"}) {
     const T k = T(mp50(kstr));
@@ -132,17 +135,19 @@ TEST_CASE_TEMPLATE("the apex height equals the height of the apex state", T, flo
     // Reference: the apex height from the explicit form v/k - (g/k^2) log(1 + k v/g) in
     // 100 digits (a different formulation), or v^2/(2g) in vacuum; g as T holds it.
     const mp100 K(k), V(25), G(lob::standard_gravity<T>());
-    const mp100 href = K == 0 ? mp100(2 + V * V / (2 * G)) : mp100(2 + V / K - G / (K * K) * log(mp100(1 + K * V / G)));
+    const mp100 href =
+        K == 0 ? mp100(2 + V * V / (2 * G)) : mp100(2 + V / K - G / (K * K) * log(mp100(1 + K * V / G)));
     CHECK(rel(mp100(*h), href) <= mp100(16 * eps));
   }
-  const lob::linear_flight<double> down = make_flight<double>(0.1, {10.0, 0.0, -5.0}, lob::vec3<double>::Zero(),
-                                                              {0.0, 0.0, 7.0});
+  const lob::linear_flight<double> down =
+      make_flight<double>(0.1, {10.0, 0.0, -5.0}, lob::vec3<double>::Zero(), {0.0, 0.0, 7.0});
   CHECK(*down.max_height() == 7.0);
 }
 
 TEST_CASE("sampling an exact flight writes the states at() gives, end points included") {
-  const auto flight = lob::fly(lob::linear_drag<double>{0.3}, lob::medium<double>{},
-                               lob::shot<double>{lob::vec3<double>::Zero(), lob::launch_velocity(18.0, lob::deg(50.0))});
+  const auto flight =
+      lob::fly(lob::linear_drag<double>{0.3}, lob::medium<double>{},
+               lob::shot<double>{lob::vec3<double>::Zero(), lob::launch_velocity(18.0, lob::deg(50.0))});
   REQUIRE(flight);
   std::array<lob::state<double>, 7> points{};
   const auto written = flight->sample(points, 2.4);

@@ -57,7 +57,8 @@ TEST_CASE_TEMPLATE("zero drag is the vacuum parabola of the textbook", T, float,
   long double worst = 0;
   for (int n = 0; n < count_for<T>(); ++n) {
     launch_case<T> c = random_upward<T>(rng);
-    c.air.wind = lob::vec3<T>(T(20 * u(rng) - 10), T(20 * u(rng) - 10), T(4 * u(rng) - 2));  // no effect at k = 0
+    c.air.wind =
+        lob::vec3<T>(T(20 * u(rng) - 10), T(20 * u(rng) - 10), T(4 * u(rng) - 2));  // no effect at k = 0
     const T dh = u(rng) < 0.5 ? T(0) : T(-std::pow(10.0, -3 + 7 * u(rng)));
     const lob::linear_flight<T> f = flight(T(0), c);
     const lob::linear_flight<T> v = lob::fly(lob::vacuum<T>{}, c.air, c.shot).value();
@@ -83,7 +84,8 @@ TEST_CASE_TEMPLATE("zero drag is the vacuum parabola of the textbook", T, float,
   CHECK(worst <= static_cast<long double>(8 * eps));
 }
 
-TEST_CASE_TEMPLATE("drag never lengthens the range, and more drag shortens it further", T, float, double, long double) {
+TEST_CASE_TEMPLATE("drag never lengthens the range, and more drag shortens it further", T, float, double,
+                   long double) {
   // common practice
   std::mt19937_64 rng(1002);
   std::uniform_real_distribution<double> u(0, 1);

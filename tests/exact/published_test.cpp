@@ -32,7 +32,8 @@ bool names(const lob::error& e, const char* text) { return std::strstr(e.message
 
 }  // namespace
 
-TEST_CASE_TEMPLATE("vacuum range, flight time and apex height are the textbook formulas", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("vacuum range, flight time and apex height are the textbook formulas", T, float, double,
+                   long double, mp50) {
   // Vacuum on level ground (any mechanics textbook): range v^2 sin(2 theta)/g, flight
   // time 2 v sin(theta)/g, apex height v^2 sin^2(theta)/(2 g); 45 degrees goes farthest.
   using std::sin;
@@ -169,7 +170,8 @@ TEST_CASE("a crosswind drifts the body by w (t - (1 - e^-kt)/k) and does nothing
     const long double drift = 6.0L * (t + std::expm1(-kl * t) / kl);
     CHECK(std::abs(land.position.y() - static_cast<double>(drift)) <= 1e-13 * static_cast<double>(drift));
     // still-air timing: a crosswind changes nothing along the vertical
-    const lob::linear_flight<double> calm = lob::linear_flight<double>::make(k, lob::medium<double>{}, s).value();
+    const lob::linear_flight<double> calm =
+        lob::linear_flight<double>::make(k, lob::medium<double>{}, s).value();
     CHECK(calm.landing(0.0)->time == doctest::Approx(land.time).epsilon(1e-15));
   }
   const lob::linear_flight<double> vac = lob::linear_flight<double>::make(0.0, air, s).value();
@@ -216,8 +218,10 @@ TEST_CASE("bad input gives a specific error naming the offending value") {
   bad_air = {};
   bad_air.wind = {inf, 0, 0};
   CHECK(lob::linear_flight<double>::make(0.1, bad_air, s).error() == lob::errc::invalid_argument);
-  CHECK(lob::linear_flight<double>::make(0.1, air, {{nan, 0, 0}, {1, 0, 1}}).error() == lob::errc::invalid_argument);
-  CHECK(lob::linear_flight<double>::make(0.1, air, {{0, 0, 0}, {1, nan, 1}}).error() == lob::errc::invalid_argument);
+  CHECK(lob::linear_flight<double>::make(0.1, air, {{nan, 0, 0}, {1, 0, 1}}).error() ==
+        lob::errc::invalid_argument);
+  CHECK(lob::linear_flight<double>::make(0.1, air, {{0, 0, 0}, {1, nan, 1}}).error() ==
+        lob::errc::invalid_argument);
   // fly() checks the model the same way
   CHECK(lob::fly(lob::linear_drag<double>{-1.0}, air, s).error() == lob::errc::invalid_argument);
   CHECK(lob::linear_drag<double>::from_terminal_speed(0.0).error() == lob::errc::invalid_argument);
@@ -263,5 +267,6 @@ TEST_CASE("bad input gives a specific error naming the offending value") {
       lob::linear_flight<double>::make(0.0, air, {{0, 0, 0}, {1e300, 0, 1e300}}).value();
   CHECK(huge.at(1e300).error() == lob::errc::invalid_argument);
   const auto far = huge.landing(0.0);
-  CHECK((far.has_value() ? lob::is_finite(far->time) && lob::is_finite(far->position) : far.error() == lob::errc::invalid_argument));
+  CHECK((far.has_value() ? lob::is_finite(far->time) && lob::is_finite(far->position)
+                         : far.error() == lob::errc::invalid_argument));
 }

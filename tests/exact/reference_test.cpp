@@ -117,10 +117,11 @@ void check_table(double tolerance) {
       rising.see(rel(mp50(up->time), r.rising_time), r.id);
     }
   }
-  MESSAGE("max relative errors over " << rows().size() << " flights, digits " << std::numeric_limits<T>::digits
-          << ": time " << time.err << " (" << time.id << "), range " << range.err << " (" << range.id
-          << "), apex height " << apex.err << " (" << apex.id << "), landing speed " << speed.err << " ("
-          << speed.id << "), rising time " << rising.err << " (" << rising.id << ")");
+  MESSAGE("max relative errors over "
+          << rows().size() << " flights, digits " << std::numeric_limits<T>::digits << ": time " << time.err
+          << " (" << time.id << "), range " << range.err << " (" << range.id << "), apex height " << apex.err
+          << " (" << apex.id << "), landing speed " << speed.err << " (" << speed.id << "), rising time "
+          << rising.err << " (" << rising.id << ")");
   const mp50 tol(tolerance);
   CHECK(time.err <= tol);
   CHECK(range.err <= tol);

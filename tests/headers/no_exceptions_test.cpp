@@ -25,7 +25,8 @@ int main() {
   if (vacuum) {
     const auto land = vacuum->landing(0.0);
     expect(land.has_value(), "vacuum landing exists");
-    if (land) expect(std::abs(land->time - 20.0 / lob::standard_gravity<double>()) < 1e-12, "vacuum flight time");
+    if (land)
+      expect(std::abs(land->time - 20.0 / lob::standard_gravity<double>()) < 1e-12, "vacuum flight time");
   }
 
   const auto drag = lob::fly(lob::linear_drag<double>{0.3}, air, launch);

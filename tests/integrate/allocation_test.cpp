@@ -42,13 +42,16 @@ TEST_CASE("integrated flight queries do not allocate") {
       lob::flight_options<double> o;
       o.method = method;
       const long before = allocations.load();
-      const auto f = lob::fly(lob::quadratic_drag<double>{.coefficient = 0.009}, still ? lob::medium<double>{} : air, s, o);
-      const auto g = lob::fly(lob::linear_quadratic_drag<double>{.rate = 0.1, .coefficient = 0.004}, air, s, o);
+      const auto f = lob::fly(lob::quadratic_drag<double>{.coefficient = 0.009},
+                              still ? lob::medium<double>{} : air, s, o);
+      const auto g =
+          lob::fly(lob::linear_quadratic_drag<double>{.rate = 0.1, .coefficient = 0.004}, air, s, o);
       double sum = 0;
       sum += f->at(1.5)->position.x() + f->apex()->time + f->landing()->time + *f->range();
       sum += f->crossing(5.0, lob::side::rising)->time + f->at_distance(20.0)->time;
       sum += static_cast<double>(f->sample(path, 3.0).value_or(0));
-      sum += g->landing()->time + f->landing(-100.0).has_value() + f->crossing(1e4, lob::side::falling).has_value();
+      sum += g->landing()->time + f->landing(-100.0).has_value() +
+             f->crossing(1e4, lob::side::falling).has_value();
       const long after = allocations.load();
       CHECK(sum > 0);
       CHECK(after == before);

@@ -66,7 +66,8 @@ std::vector<reference_flight<T>> load_reference() {
     reference_flight<T> r;
     r.name = f[0];
     r.launch.position = lob::vec3<T>(parse<T>(f[3]), parse<T>(f[4]), parse<T>(f[5]));
-    r.launch.velocity = lob::launch_velocity(parse<T>(f[6]), lob::deg(parse<T>(f[7])), lob::deg(parse<T>(f[8])));
+    r.launch.velocity =
+        lob::launch_velocity(parse<T>(f[6]), lob::deg(parse<T>(f[7])), lob::deg(parse<T>(f[8])));
     r.air.wind = lob::vec3<T>(parse<T>(f[9]), parse<T>(f[10]), parse<T>(f[11]));
     r.landing_height = parse<T>(f[12]);
     r.k = parse<T>(f[13]);

@@ -58,7 +58,8 @@ TEST_CASE_TEMPLATE("drag model factories compute their coefficients and reject b
   CHECK(f->rate == T(1) / T(20));
   // Terminal speed: the root of c v^2 + k v = g.
   const T vt = f->terminal_speed(g);
-  CHECK(lob_test::rel_err(T(f->coefficient * vt * vt + f->rate * vt), g) <= T(8) * std::numeric_limits<T>::epsilon());
+  CHECK(lob_test::rel_err(T(f->coefficient * vt * vt + f->rate * vt), g) <=
+        T(8) * std::numeric_limits<T>::epsilon());
   CHECK_FALSE(lob::linear_quadratic_drag<T>::from_forces(T(1), T(-1), T(0)));
   CHECK_FALSE(lob::linear_quadratic_drag<T>::from_sphere(T(1), T(1), T(-1), T(1), T(1)));
 }
@@ -67,10 +68,10 @@ TEST_CASE("negative or non-finite coefficients are rejected by fly()") {
   const double nan = std::numeric_limits<double>::quiet_NaN();
   const double inf = std::numeric_limits<double>::infinity();
   const lob::medium<double> air;
-  check_error(lob::fly(lob::quadratic_drag<double>{.coefficient = -0.1}, air, ball()), lob::errc::invalid_argument,
-              "must be >= 0, got -0.1");
-  check_error(lob::fly(lob::quadratic_drag<double>{.coefficient = nan}, air, ball()), lob::errc::invalid_argument,
-              "must be finite, got nan");
+  check_error(lob::fly(lob::quadratic_drag<double>{.coefficient = -0.1}, air, ball()),
+              lob::errc::invalid_argument, "must be >= 0, got -0.1");
+  check_error(lob::fly(lob::quadratic_drag<double>{.coefficient = nan}, air, ball()),
+              lob::errc::invalid_argument, "must be finite, got nan");
   check_error(lob::fly(lob::linear_quadratic_drag<double>{.rate = -1, .coefficient = 0.01}, air, ball()),
               lob::errc::invalid_argument, "linear drag rate must be >= 0");
   check_error(lob::fly(lob::linear_quadratic_drag<double>{.rate = 0.1, .coefficient = inf}, air, ball()),
@@ -81,8 +82,8 @@ TEST_CASE("negative or non-finite coefficients are rejected by fly()") {
               lob::errc::invalid_argument, "wind must be finite");
   lob::shot<double> bad_shot = ball();
   bad_shot.velocity.z() = inf;
-  check_error(lob::fly(lob::quadratic_drag<double>{.coefficient = 0.01}, air, bad_shot), lob::errc::invalid_argument,
-              "launch velocity must be finite");
+  check_error(lob::fly(lob::quadratic_drag<double>{.coefficient = 0.01}, air, bad_shot),
+              lob::errc::invalid_argument, "launch velocity must be finite");
 }
 
 TEST_CASE("options out of range are rejected") {
@@ -93,13 +94,18 @@ TEST_CASE("options out of range are rejected") {
     change(o);
     return lob::fly(m, air, ball(), o);
   };
-  check_error(with([](auto& o) { o.relative_tolerance = 0; }), lob::errc::invalid_argument, "relative tolerance");
-  check_error(with([](auto& o) { o.relative_tolerance = 1e-16; }), lob::errc::invalid_argument, "relative tolerance must be in [1e-15, 1e-2], got");
-  check_error(with([](auto& o) { o.relative_tolerance = 0.1; }), lob::errc::invalid_argument, "relative tolerance");
+  check_error(with([](auto& o) { o.relative_tolerance = 0; }), lob::errc::invalid_argument,
+              "relative tolerance");
+  check_error(with([](auto& o) { o.relative_tolerance = 1e-16; }), lob::errc::invalid_argument,
+              "relative tolerance must be in [1e-15, 1e-2], got");
+  check_error(with([](auto& o) { o.relative_tolerance = 0.1; }), lob::errc::invalid_argument,
+              "relative tolerance");
   check_error(with([](auto& o) { o.relative_tolerance = std::nan(""); }), lob::errc::invalid_argument,
               "relative tolerance");
-  check_error(with([](auto& o) { o.absolute_tolerance = 0; }), lob::errc::invalid_argument, "absolute tolerance");
-  check_error(with([](auto& o) { o.absolute_tolerance = -1e-9; }), lob::errc::invalid_argument, "absolute tolerance");
+  check_error(with([](auto& o) { o.absolute_tolerance = 0; }), lob::errc::invalid_argument,
+              "absolute tolerance");
+  check_error(with([](auto& o) { o.absolute_tolerance = -1e-9; }), lob::errc::invalid_argument,
+              "absolute tolerance");
   check_error(with([](auto& o) { o.initial_step = -1; }), lob::errc::invalid_argument, "initial step");
   check_error(with([](auto& o) { o.fixed_step = 0; }), lob::errc::invalid_argument, "fixed step");
   check_error(with([](auto& o) { o.max_steps = 0; }), lob::errc::invalid_argument, "max_steps");
@@ -114,14 +120,16 @@ TEST_CASE("bad query arguments are error values") {
   REQUIRE(f);
   check_error(f->at(-1.0), lob::errc::invalid_argument, "time must be finite");
   check_error(f->at(std::nan("")), lob::errc::invalid_argument, "time must be finite");
-  check_error(f->crossing(std::nan(""), lob::side::rising), lob::errc::invalid_argument, "height must be finite");
+  check_error(f->crossing(std::nan(""), lob::side::rising), lob::errc::invalid_argument,
+              "height must be finite");
   check_error(f->at_distance(-2.0), lob::errc::invalid_argument, "distance must be finite");
   std::array<lob::state<double>, 3> out;
   check_error(f->sample(out, -1.0), lob::errc::invalid_argument, "sample end time");
   for (const bool fast : {true, false}) {
     lob::flight_options<double> o;
     o.use_fast_paths = fast;
-    const auto g = lob::fly(lob::quadratic_drag<double>{.coefficient = 0.01}, lob::medium<double>{}, ball(), o);
+    const auto g =
+        lob::fly(lob::quadratic_drag<double>{.coefficient = 0.01}, lob::medium<double>{}, ball(), o);
     check_error(g->crossing(1000.0, lob::side::falling), lob::errc::never_reaches, "above the apex");
     check_error(g->crossing(1000.0, lob::side::rising), lob::errc::never_reaches, "above the apex");
     check_error(g->crossing(-5.0, lob::side::rising), lob::errc::never_reaches, "rising branch starts above");
@@ -165,7 +173,8 @@ TEST_CASE("reaching a cap is an error value") {
     lob::flight_options<double> few = lob_test::integrated(1e-9);
     few.method = method;
     few.max_steps = 5;
-    check_error(lob::fly(m, lob::medium<double>{}, ball(), few)->landing(), lob::errc::step_limit, "max_steps");
+    check_error(lob::fly(m, lob::medium<double>{}, ball(), few)->landing(), lob::errc::step_limit,
+                "max_steps");
     lob::flight_options<double> short_time = lob_test::integrated(1e-9);
     short_time.method = method;
     short_time.max_time = 1.0;

@@ -106,8 +106,8 @@ double rel_err(const T& value, const std::string& ref, const T& floor = T(0)) {
 template <class T>
 struct tolerance;
 // Measured maxima over the table (reported by the MESSAGE of each case): float 1.2e-6,
-// double 1.2e-14 (landing speed; 4e-15 otherwise), long double 3e-18, 50 digits 5e-25 (the table carries 25 digits). The
-// bounds: the required 1e-13 for double, a few times the measured maxima for the others.
+// double 1.2e-14 (landing speed; 4e-15 otherwise), long double 3e-18, 50 digits 5e-25 (the table carries 25
+// digits). The bounds: the required 1e-13 for double, a few times the measured maxima for the others.
 template <>
 struct tolerance<float> {
   static constexpr double value = 4e-6;
@@ -134,7 +134,8 @@ T pi_half() {
 
 // The node loops' series, against the standard library's expm1 and sinh (std, correctly
 // rounded to within an ulp or so: from memory of glibc's documented accuracy).
-TEST_CASE_TEMPLATE("the vectorised series for e^x - 1 and sinh agree with std", T, float, double, long double) {
+TEST_CASE_TEMPLATE("the vectorised series for e^x - 1 and sinh agree with std", T, float, double,
+                   long double) {
   using arr = Eigen::Array<T, 64, 1>;
   arr x;
   for (int i = 0; i < 64; ++i) x(i) = T(i) / T(63) * (i % 2 ? T(1) : T(1) / T(1000));  // [0, 1] and near 0
@@ -611,7 +612,8 @@ TEST_CASE_TEMPLATE("aiming at a reference point finds a launch elevation through
     const T guess = th + T(1) / T(100);
     const lob::result<hodograph_point<T>> trial = hodograph_at_distance(c, g, v, guess, x, never);
     const std::optional<T> inclination = trial ? std::optional<T>(trial->inclination) : std::nullopt;
-    const lob::result<lob::detail::hodograph_aim_root<T>> a = hodograph_aim(c, g, v, x, hh, guess, inclination);
+    const lob::result<lob::detail::hodograph_aim_root<T>> a =
+        hodograph_aim(c, g, v, x, hh, guess, inclination);
     if (!a) {
       ++failed;
       CHECK(a.error().code() == lob::errc::no_convergence);
@@ -629,8 +631,8 @@ TEST_CASE_TEMPLATE("aiming at a reference point finds a launch elevation through
   }
   CHECK(same > 100);
   CHECK(failed * 100 <= same + other + failed);
-  MESSAGE("aimed at ", same + other + failed, " reference points: ", same, " gave the row's elevation, ", other,
-          " the other root, ", failed, " did not converge; worst miss ", worst_miss);
+  MESSAGE("aimed at ", same + other + failed, " reference points: ", same, " gave the row's elevation, ",
+          other, " the other root, ", failed, " did not converge; worst miss ", worst_miss);
 }
 
 TEST_CASE("the hodograph aim's slope matches a difference quotient of the height at the distance") {

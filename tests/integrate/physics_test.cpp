@@ -132,7 +132,9 @@ TEST_CASE("energy never increases in still air") {
     REQUIRE(land);
     std::array<lob::state<T>, 200> path;
     REQUIRE(f->sample(path, land->time).value_or(0) == path.size());
-    const auto energy = [&](const lob::state<T>& p) { return 0.5 * p.velocity.squaredNorm() + g * p.position.z(); };
+    const auto energy = [&](const lob::state<T>& p) {
+      return 0.5 * p.velocity.squaredNorm() + g * p.position.z();
+    };
     const T e0 = energy(path[0]);
     for (std::size_t i = 1; i < path.size(); ++i) {
       // Drag only takes energy away; the slack is the integration tolerance.
@@ -216,8 +218,8 @@ TEST_CASE_TEMPLATE("a crosswind moves the landing point sideways, for every mode
   using std::exp;
   const T t_land = exact->landing()->time;
   CHECK(lob_test::rel_err(y_exact, T(T(6) * (t_land - (1 - exp(T(-k * t_land))) / k))) <= T(1e-12));
-  CHECK(lob_test::rel_err(drift(lob::linear_quadratic_drag<T>{.rate = k, .coefficient = T(0)}, T(6)), y_exact) <=
-        T(1e-10));
+  CHECK(lob_test::rel_err(drift(lob::linear_quadratic_drag<T>{.rate = k, .coefficient = T(0)}, T(6)),
+                          y_exact) <= T(1e-10));
 }
 
 TEST_CASE("heights are measured along up for any gravity direction") {
@@ -253,7 +255,8 @@ TEST_CASE_TEMPLATE("queries agree with one another", T, double, long double) {
   lob::shot<T> s;
   s.position = lob::vec3<T>(T(5), T(-1), T(1));
   s.velocity = lob::launch_velocity(T(30), lob::deg(T(38)), lob::deg(T(10)));
-  const auto f = lob::fly(lob::quadratic_drag<T>{.coefficient = T(1) / T(100)}, air, s, lob_test::integrated(T(1e-11)));
+  const auto f =
+      lob::fly(lob::quadratic_drag<T>{.coefficient = T(1) / T(100)}, air, s, lob_test::integrated(T(1e-11)));
   REQUIRE(f);
   const auto top = f->apex();
   const auto land = f->landing();

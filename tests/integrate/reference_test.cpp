@@ -30,7 +30,8 @@ void fly_reference(const lob_test::reference_flight<T>& r, const lob::flight_opt
     REQUIRE(f);
     check(*f);
   } else {
-    const auto f = lob::fly(lob::linear_quadratic_drag<T>{.rate = r.k, .coefficient = r.c}, r.air, r.launch, o);
+    const auto f =
+        lob::fly(lob::linear_quadratic_drag<T>{.rate = r.k, .coefficient = r.c}, r.air, r.launch, o);
     REQUIRE(f);
     check(*f);
   }
@@ -70,10 +71,12 @@ void check_tolerance(int e, const std::vector<lob_test::reference_flight<T>>& ro
     });
   }
   char text[200];
-  std::snprintf(text, sizeof text, "digits %d, tol 1e-%d: worst rel. error landing time %.2Le, range %.2Le, apex %.2Le, velocity %.2Le",
-                std::numeric_limits<T>::digits, e, static_cast<long double>(worst_time),
-                static_cast<long double>(worst_range), static_cast<long double>(worst_apex),
-                static_cast<long double>(worst_speed));
+  std::snprintf(
+      text, sizeof text,
+      "digits %d, tol 1e-%d: worst rel. error landing time %.2Le, range %.2Le, apex %.2Le, velocity %.2Le",
+      std::numeric_limits<T>::digits, e, static_cast<long double>(worst_time),
+      static_cast<long double>(worst_range), static_cast<long double>(worst_apex),
+      static_cast<long double>(worst_speed));
   MESSAGE(text);
 }
 

@@ -163,7 +163,8 @@ TEST_CASE_TEMPLATE("the layer formulas agree with a numerically integrated hydro
   REQUIRE(rows.size() == 72);
   T worst = T(0);
   for (const reference_row& r : rows) {
-    const lob::result<lob::atmosphere_state<T>> s = lob::standard_atmosphere(num<T>(r.h.c_str()), num<T>(r.offset.c_str()));
+    const lob::result<lob::atmosphere_state<T>> s =
+        lob::standard_atmosphere(num<T>(r.h.c_str()), num<T>(r.offset.c_str()));
     REQUIRE(s.has_value());
     const T e = rel(s->pressure, num<T>(r.pressure.c_str()));
     const T d = rel(s->density, num<T>(r.density.c_str()));

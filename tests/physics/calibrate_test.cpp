@@ -31,8 +31,8 @@ lob::shot<double> launch_of(const scenario& s) {
 
 // Samples of a true flight with Gaussian noise of `sigma` [m] on every coordinate.
 template <class Model>
-std::vector<lob::sample<double>> observe(const Model& truth, const lob::shot<double>& launch, const scenario& s,
-                                         double sigma, std::mt19937_64& rng) {
+std::vector<lob::sample<double>> observe(const Model& truth, const lob::shot<double>& launch,
+                                         const scenario& s, double sigma, std::mt19937_64& rng) {
   const lob::medium<double> air{};
   const auto flight = lob::fly(truth, air, launch);
   REQUIRE(flight.has_value());
@@ -42,7 +42,8 @@ std::vector<lob::sample<double>> observe(const Model& truth, const lob::shot<dou
     const double t = s.start + s.step * i;
     const lob::result<lob::state<double>> at = flight->at(t);
     REQUIRE(at.has_value());
-    out.push_back({t, lob::vec3<double>(at->position + lob::vec3<double>(noise(rng), noise(rng), noise(rng)))});
+    out.push_back(
+        {t, lob::vec3<double>(at->position + lob::vec3<double>(noise(rng), noise(rng), noise(rng)))});
   }
   return out;
 }
@@ -57,7 +58,8 @@ TEST_CASE("a fit to exact samples recovers the drag rate to high accuracy") {
   const lob::shot<double> launch = launch_of(s);
   const std::vector<lob::sample<double>> data = observe(lob::linear_drag<double>{0.13}, launch, s, 0.0, rng);
   const lob::measured_flight<double> flight{launch, data};
-  const lob::result<lob::fit_result<double>> fit = lob::calibrate(linear_family, 0.05, flight, lob::medium<double>{});
+  const lob::result<lob::fit_result<double>> fit =
+      lob::calibrate(linear_family, 0.05, flight, lob::medium<double>{});
   REQUIRE(fit.has_value());
   CHECK(fit->parameter == doctest::Approx(0.13).epsilon(1e-8));
   CHECK(fit->rms < 1e-8);
@@ -77,9 +79,11 @@ TEST_CASE("the drag rate lies within its standard error as often as it should ov
   const int seeds = 200;
   for (int seed = 0; seed < seeds; ++seed) {
     std::mt19937_64 rng(1000 + seed);
-    const std::vector<lob::sample<double>> data = observe(lob::linear_drag<double>{k_true}, launch, s, 0.03, rng);
+    const std::vector<lob::sample<double>> data =
+        observe(lob::linear_drag<double>{k_true}, launch, s, 0.03, rng);
     const lob::measured_flight<double> flight{launch, data};
-    const lob::result<lob::fit_result<double>> fit = lob::calibrate(linear_family, 0.2, flight, lob::medium<double>{});
+    const lob::result<lob::fit_result<double>> fit =
+        lob::calibrate(linear_family, 0.2, flight, lob::medium<double>{});
     REQUIRE(fit.has_value());
     const double z = (fit->parameter - k_true) / fit->parameter_error;
     covered += std::abs(z) < 1.96 ? 1 : 0;
@@ -109,8 +113,10 @@ TEST_CASE("speed, elevation and drag rate are recovered within their errors from
     b.azimuth_deg = -30.0;
     b.count = 25;
     const lob::shot<double> true_a = launch_of(a), true_b = launch_of(b);
-    const std::vector<lob::sample<double>> da = observe(lob::linear_drag<double>{k_true}, true_a, a, 0.02, rng);
-    const std::vector<lob::sample<double>> db = observe(lob::linear_drag<double>{k_true}, true_b, b, 0.02, rng);
+    const std::vector<lob::sample<double>> da =
+        observe(lob::linear_drag<double>{k_true}, true_a, a, 0.02, rng);
+    const std::vector<lob::sample<double>> db =
+        observe(lob::linear_drag<double>{k_true}, true_b, b, 0.02, rng);
     // The rig's nominal settings are off: 4% slow and 2 degrees low.
     scenario na = a, nb = b;
     na.speed *= 0.96;
@@ -156,7 +162,8 @@ TEST_CASE("a quadratic drag coefficient is recovered within its error through in
   int covered = 0;
   for (int seed = 0; seed < seeds; ++seed) {
     std::mt19937_64 rng(9000 + seed);
-    const std::vector<lob::sample<double>> data = observe(lob::quadratic_drag<double>{c_true}, launch, s, 0.02, rng);
+    const std::vector<lob::sample<double>> data =
+        observe(lob::quadratic_drag<double>{c_true}, launch, s, 0.02, rng);
     const lob::measured_flight<double> flight{launch, data};
     lob::fit_options<double> options;
     options.flight.relative_tolerance = 1e-10;
@@ -182,7 +189,8 @@ TEST_CASE("a robust loss resists a few gross outliers") {
   data[14].position.x() -= 2.5;
   data[22].position.y() += 4.0;
   const lob::measured_flight<double> flight{launch, data};
-  const lob::result<lob::fit_result<double>> plain = lob::calibrate(linear_family, 0.1, flight, lob::medium<double>{});
+  const lob::result<lob::fit_result<double>> plain =
+      lob::calibrate(linear_family, 0.1, flight, lob::medium<double>{});
   lob::fit_options<double> options;
   options.loss = lob::fit_loss::huber;
   options.loss_scale = 0.03;
@@ -239,7 +247,8 @@ TEST_CASE("too few samples, bad inputs and a non-converged fit are errors") {
 
   lob::fit_options<double> short_budget;
   short_budget.max_evaluations = 3;
-  const lob::result<lob::fit_result<double>> tired = lob::calibrate(linear_family, 3.0, good, air, short_budget);
+  const lob::result<lob::fit_result<double>> tired =
+      lob::calibrate(linear_family, 3.0, good, air, short_budget);
   REQUIRE_FALSE(tired);
   CHECK(tired.error() == lob::errc::no_convergence);
   CHECK(std::strstr(tired.error().message(), "did not converge") != nullptr);

@@ -50,7 +50,8 @@ TEST_CASE_TEMPLATE("the factories build each model from the body and the air", T
   REQUIRE(fall.has_value());
   CHECK(abs(T(quad->terminal_speed() / fall->speed - 1)) <= eps);
 
-  const lob::result<lob::linear_quadratic_drag<T>> both = lob::make_linear_quadratic_drag(ball, air, T(4) / T(10));
+  const lob::result<lob::linear_quadratic_drag<T>> both =
+      lob::make_linear_quadratic_drag(ball, air, T(4) / T(10));
   REQUIRE(both.has_value());
   CHECK(abs(T(both->rate / lin->rate - 1)) <= eps);
   CHECK(abs(T(both->coefficient / (quad->coefficient * T(4) / T(5)) - 1)) <= eps);

@@ -137,7 +137,8 @@ TEST_CASE("Morrison's correlation shows the drag crisis") {
 }
 
 TEST_CASE_TEMPLATE("Reynolds numbers outside a correlation's range are errors", T, float, double, mp50) {
-  const lob::result<T> high = lob::sphere_drag_coefficient(T(1000), lob::sphere_correlation::schiller_naumann_1933);
+  const lob::result<T> high =
+      lob::sphere_drag_coefficient(T(1000), lob::sphere_correlation::schiller_naumann_1933);
   REQUIRE_FALSE(high);
   CHECK(high.error() == lob::errc::invalid_argument);
   CHECK(std::strstr(high.error().message(), "above the correlation's range") != nullptr);
@@ -200,7 +201,8 @@ TEST_CASE_TEMPLATE("a small sphere settles at Stokes' speed", T, float, double, 
   const T d = T(2) / T(100000);
   const T rho_p = T(998);
   const lob::sphere<T> drop{T(rho_p * boost::math::constants::pi<T>() * d * d * d / T(6)), d};
-  const lob::result<lob::terminal_state<T>> t = lob::terminal_speed(drop, air, lob::sphere_correlation::stokes);
+  const lob::result<lob::terminal_state<T>> t =
+      lob::terminal_speed(drop, air, lob::sphere_correlation::stokes);
   REQUIRE(t.has_value());
   const T want = d * d * (rho_p - air.density) * lob::standard_gravity<T>() / (T(18) * air.dynamic_viscosity);
   using std::abs;
@@ -210,7 +212,8 @@ TEST_CASE_TEMPLATE("a small sphere settles at Stokes' speed", T, float, double, 
   const lob::result<T> k = lob::stokes_rate(drop, air);
   REQUIRE(k.has_value());
   const T no_buoyancy = d * d * rho_p * lob::standard_gravity<T>() / (T(18) * air.dynamic_viscosity);
-  CHECK(abs(T(lob::standard_gravity<T>() / *k / no_buoyancy - 1)) <= T(64) * std::numeric_limits<T>::epsilon());
+  CHECK(abs(T(lob::standard_gravity<T>() / *k / no_buoyancy - 1)) <=
+        T(64) * std::numeric_limits<T>::epsilon());
   // The fuller correlations agree to their first correction, 3 Re / 16 (Oseen) or less.
   const lob::result<lob::terminal_state<T>> cg = lob::terminal_speed(drop, air);
   REQUIRE(cg.has_value());

@@ -53,7 +53,8 @@ TEST_CASE("terminal speeds of small water drops match Gunn and Kinzer within the
     double worst = 0;
     for (const drop_row& r : gunn_kinzer) {
       if (r.diameter_mm < 0.15 || r.diameter_mm > 1.45) continue;
-      const lob::result<lob::terminal_state<double>> t = lob::terminal_speed(water_drop(r.diameter_mm), *air, c);
+      const lob::result<lob::terminal_state<double>> t =
+          lob::terminal_speed(water_drop(r.diameter_mm), *air, c);
       REQUIRE(t.has_value());
       const double e = t->speed / r.speed - 1;
       const double bound = lob::info(c).accuracy / (2 + log_slope(t->reynolds, c)) + 0.01;
@@ -107,11 +108,13 @@ TEST_CASE_TEMPLATE("the terminal speed solves the force balance to the precision
     const mp50 rho = mp50(air.density), mu = mp50(air.dynamic_viscosity), d = mp50(ball.diameter),
                m = mp50(ball.mass);
     const mp50 area = boost::math::constants::pi<mp50>() * d * d / 4;
-    const mp50 w = (m - rho * boost::math::constants::pi<mp50>() * d * d * d / 6) * lob::standard_gravity<mp50>();
+    const mp50 w =
+        (m - rho * boost::math::constants::pi<mp50>() * d * d * d / 6) * lob::standard_gravity<mp50>();
     const auto excess = [&](const mp50& v) {
       const mp50 re = rho * v * d / mu;
-      return mp50(lob::detail::cd_times_re(re, lob::sphere_correlation::clift_gauvin_1970) / re * rho * v * v *
-                      area / 2 - w);
+      return mp50(lob::detail::cd_times_re(re, lob::sphere_correlation::clift_gauvin_1970) / re * rho * v *
+                      v * area / 2 -
+                  w);
     };
     mp50 lo = 0, hi = 1000;
     for (int k = 0; k < 400; ++k) {
@@ -152,16 +155,18 @@ TEST_CASE("a general body falls at sqrt(2 W / (rho A Cd))") {
 
 TEST_CASE("terminal speeds outside the correlation or of floating bodies are errors") {
   const lob::air_properties<double> air{1.2, 1.8e-5, 340, 293, 101325};
-  const lob::result<lob::terminal_state<double>> fast =
-      lob::terminal_speed(lob::sphere<double>{0.05, 0.02}, air, lob::sphere_correlation::schiller_naumann_1933);
+  const lob::result<lob::terminal_state<double>> fast = lob::terminal_speed(
+      lob::sphere<double>{0.05, 0.02}, air, lob::sphere_correlation::schiller_naumann_1933);
   REQUIRE_FALSE(fast);
   CHECK(fast.error() == lob::errc::invalid_argument);
   CHECK(std::strstr(fast.error().message(), "beyond the correlation's range") != nullptr);
-  const lob::result<lob::terminal_state<double>> balloon = lob::terminal_speed(lob::sphere<double>{0.001, 0.3}, air);
+  const lob::result<lob::terminal_state<double>> balloon =
+      lob::terminal_speed(lob::sphere<double>{0.001, 0.3}, air);
   REQUIRE_FALSE(balloon);
   CHECK(balloon.error() == lob::errc::never_reaches);
   CHECK_FALSE(lob::terminal_speed(lob::sphere<double>{-1, 0.3}, air));
-  CHECK_FALSE(lob::terminal_speed(lob::sphere<double>{1, 0.3}, air, lob::sphere_correlation::clift_gauvin_1970, 0.0));
+  CHECK_FALSE(
+      lob::terminal_speed(lob::sphere<double>{1, 0.3}, air, lob::sphere_correlation::clift_gauvin_1970, 0.0));
   const lob::air_properties<double> vacuum{0, 1.8e-5, 340, 293, 0};
   CHECK_FALSE(lob::terminal_speed(lob::sphere<double>{1, 0.3}, vacuum));
 }

@@ -53,8 +53,8 @@ T miss_of(const M& model, const lob::medium<T>& air, const std::type_identity_t<
 
 }  // namespace
 
-TEST_CASE_TEMPLATE("vacuum aim matches the textbook elevation formula above, below and level", T, float, double,
-                   long double, mp50) {
+TEST_CASE_TEMPLATE("vacuum aim matches the textbook elevation formula above, below and level", T, float,
+                   double, long double, mp50) {
   using std::atan;
   using std::sqrt;
   using std::abs;
@@ -173,7 +173,8 @@ TEST_CASE("the direct solver corrects the azimuth for a crosswind") {
   CHECK(miss_of(model, air, req.launch_point, target, *direct->lofted) <= 1e-9);
 }
 
-TEST_CASE_TEMPLATE("the flat and lofted solutions coincide at the edge of reach", T, float, double, long double) {
+TEST_CASE_TEMPLATE("the flat and lofted solutions coincide at the edge of reach", T, float, double,
+                   long double) {
   using std::abs;
   const T eps = std::numeric_limits<T>::epsilon();
   lob::medium<T> air;
@@ -191,8 +192,8 @@ TEST_CASE_TEMPLATE("the flat and lofted solutions coincide at the edge of reach"
   CHECK(abs(T(s->flat->elevation - least->elevation)) <= 64 * sqrt(eps));
   CHECK(miss_of(model, air, lob::vec3<T>::Zero(), target, *s->flat) <= 1024 * eps * T(60));
   // A little slower and the target is out of reach.
-  const auto beyond =
-      lob::aim(model, air, lob::aim_request<T>{lob::vec3<T>::Zero(), target, T(least->speed * (1 - 1000 * eps))});
+  const auto beyond = lob::aim(
+      model, air, lob::aim_request<T>{lob::vec3<T>::Zero(), target, T(least->speed * (1 - 1000 * eps))});
   REQUIRE_FALSE(beyond.has_value());
   CHECK(beyond.error() == lob::errc::out_of_reach);
 }
@@ -203,7 +204,8 @@ TEST_CASE("the direct solver merges the two solutions at the edge of reach") {
   const lob::vec3<double> target = v3<double>(50, 0, 0);
   const double edge = std::sqrt(lob::standard_gravity<double>() * 50);  // v^2/g = x (textbook)
   const lob::aim_frame<double> frame = lob::aim_frame<double>::make(air).value();
-  const auto s = lob::detail::aim_direct(model, air, frame, lob::aim_request<double>{lob::vec3<double>::Zero(), target, edge},
+  const auto s = lob::detail::aim_direct(model, air, frame,
+                                         lob::aim_request<double>{lob::vec3<double>::Zero(), target, edge},
                                          lob::solve_options<double>{});
   REQUIRE(s.has_value());
   REQUIRE(s->count() == 2);
@@ -230,9 +232,10 @@ TEST_CASE("an unreachable target reports the farthest reach at its height") {
         doctest::Approx(40.0 / g * std::sqrt(1600.0 - 2 * g * 10)).epsilon(1e-12));
   // The direct solver reports the same.
   const lob::aim_frame<double> frame = lob::aim_frame<double>::make(air).value();
-  const auto d = lob::detail::aim_direct(lob::vacuum<double>{}, air, frame,
-                                         lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(300, 0, 10), 40.0},
-                                         lob::solve_options<double>{});
+  const auto d = lob::detail::aim_direct(
+      lob::vacuum<double>{}, air, frame,
+      lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(300, 0, 10), 40.0},
+      lob::solve_options<double>{});
   REQUIRE_FALSE(d.has_value());
   CHECK(d.error() == lob::errc::out_of_reach);
   CHECK(static_cast<double>(d.error().detail_value()) ==
@@ -285,8 +288,8 @@ TEST_CASE_TEMPLATE("speed for an elevation matches the vacuum formula", T, float
   const T e = lob::deg(T(30));
   // u^2 = g x^2 / (2 cos^2 e (x tan e - y))  (any mechanics textbook)
   const T expected = x / cos(e) * sqrt(T(g / (2 * (x * tan(e) - y))));
-  const auto s = lob::speed_for_elevation(lob::vacuum<T>{}, air,
-                                          lob::elevation_request<T>{lob::vec3<T>::Zero(), v3<T>(0, 40, -5), e});
+  const auto s = lob::speed_for_elevation(
+      lob::vacuum<T>{}, air, lob::elevation_request<T>{lob::vec3<T>::Zero(), v3<T>(0, 40, -5), e});
   REQUIRE(s.has_value());
   CHECK(abs(T(s->speed - expected)) <= 256 * eps * expected);
   CHECK(abs(T(s->elevation - e)) <= 16 * eps);
@@ -297,8 +300,8 @@ TEST_CASE("speed for an elevation hits under drag and wind, and fails below the 
   air.wind = v3<double>(1, -4, 0);
   const lob::linear_drag<double> model{0.3};
   const lob::vec3<double> target = v3<double>(25, 35, 6);
-  const auto s =
-      lob::speed_for_elevation(model, air, lob::elevation_request<double>{lob::vec3<double>::Zero(), target, 0.6});
+  const auto s = lob::speed_for_elevation(
+      model, air, lob::elevation_request<double>{lob::vec3<double>::Zero(), target, 0.6});
   REQUIRE(s.has_value());
   CHECK(std::abs(s->elevation - 0.6) <= 1e-14);
   CHECK(miss_of(model, air, lob::vec3<double>::Zero(), target, *s) <= 1e-9);
@@ -320,7 +323,8 @@ TEST_CASE_TEMPLATE("least speed matches the vacuum formula", T, float, double, l
     const T x = T(45);
     // u_min^2 = g (y + sqrt(x^2 + y^2)) (any mechanics textbook)
     const T expected = sqrt(T(g * (T(y) + sqrt(T(x * x + T(y) * T(y))))));
-    const auto s = lob::least_speed(lob::vacuum<T>{}, air, lob::target_request<T>{lob::vec3<T>::Zero(), v3<T>(45, 0, y)});
+    const auto s = lob::least_speed(lob::vacuum<T>{}, air,
+                                    lob::target_request<T>{lob::vec3<T>::Zero(), v3<T>(45, 0, y)});
     REQUIRE(s.has_value());
     // The minimum is flat: the speed is right to nearly all digits.
     CHECK(abs(T(s->speed - expected)) <= 64 * eps * expected);
@@ -342,7 +346,8 @@ TEST_CASE("least speed by the direct search agrees with the exact minimum") {
   REQUIRE(exact.has_value());
   const lob::aim_frame<double> frame = lob::aim_frame<double>::make(air).value();
   const lob::solve_options<double> o;
-  const auto sh = lob::detail::shooter<lob::linear_drag<double>>::make(model, air, frame, o, req.launch_point, req.target);
+  const auto sh = lob::detail::shooter<lob::linear_drag<double>>::make(model, air, frame, o, req.launch_point,
+                                                                       req.target);
   // The speed at the exact minimum's elevation equals the exact least speed, and a
   // little off that elevation the needed speed grows.
   const auto at_min = lob::detail::speed_at(sh, exact->elevation, exact->azimuth);
@@ -361,36 +366,43 @@ TEST_CASE("bad aiming input gives clear error values") {
   const double nan = std::numeric_limits<double>::quiet_NaN();
   const double inf = std::numeric_limits<double>::infinity();
   auto code_of = [](const auto& r) { return r.error().code(); };
-  const auto same = lob::aim(model, air, lob::aim_request<double>{v3<double>(1, 1, 1), v3<double>(1, 1, 1), 10.0});
+  const auto same =
+      lob::aim(model, air, lob::aim_request<double>{v3<double>(1, 1, 1), v3<double>(1, 1, 1), 10.0});
   REQUIRE_FALSE(same.has_value());
   CHECK(code_of(same) == lob::errc::invalid_argument);
   CHECK(std::strstr(same.error().message(), "target is at the launch point") != nullptr);
-  const auto bad_target = lob::aim(model, air, lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(nan, 1, 1), 10.0});
+  const auto bad_target =
+      lob::aim(model, air, lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(nan, 1, 1), 10.0});
   REQUIRE_FALSE(bad_target.has_value());
   CHECK(std::strstr(bad_target.error().message(), "target must be finite") != nullptr);
-  const auto bad_from = lob::aim(model, air, lob::aim_request<double>{v3<double>(0, inf, 0), v3<double>(5, 1, 1), 10.0});
+  const auto bad_from =
+      lob::aim(model, air, lob::aim_request<double>{v3<double>(0, inf, 0), v3<double>(5, 1, 1), 10.0});
   REQUIRE_FALSE(bad_from.has_value());
   CHECK(std::strstr(bad_from.error().message(), "launch point must be finite") != nullptr);
   for (const double sp : {0.0, -3.0, nan, inf}) {
-    const auto r = lob::aim(model, air, lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(5, 1, 1), sp});
+    const auto r =
+        lob::aim(model, air, lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(5, 1, 1), sp});
     REQUIRE_FALSE(r.has_value());
     CHECK(code_of(r) == lob::errc::invalid_argument);
     CHECK(std::strstr(r.error().message(), "launch speed") != nullptr);
   }
   lob::medium<double> weightless;
   weightless.gravity = lob::vec3<double>::Zero();
-  const auto nog = lob::aim(model, weightless, lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(5, 1, 1), 10.0});
+  const auto nog = lob::aim(model, weightless,
+                            lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(5, 1, 1), 10.0});
   REQUIRE_FALSE(nog.has_value());
   CHECK(code_of(nog) == lob::errc::invalid_argument);
   const auto bad_rate =
-      lob::aim(lob::linear_drag<double>{-1.0}, air, lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(5, 1, 1), 10.0});
+      lob::aim(lob::linear_drag<double>{-1.0}, air,
+               lob::aim_request<double>{lob::vec3<double>::Zero(), v3<double>(5, 1, 1), 10.0});
   REQUIRE_FALSE(bad_rate.has_value());
   CHECK(code_of(bad_rate) == lob::errc::invalid_argument);
   const auto bad_elev = lob::speed_for_elevation(
       model, air, lob::elevation_request<double>{lob::vec3<double>::Zero(), v3<double>(5, 1, 1), 2.0});
   REQUIRE_FALSE(bad_elev.has_value());
   CHECK(code_of(bad_elev) == lob::errc::invalid_argument);
-  const auto same_least = lob::least_speed(model, air, lob::target_request<double>{v3<double>(2, 2, 2), v3<double>(2, 2, 2)});
+  const auto same_least =
+      lob::least_speed(model, air, lob::target_request<double>{v3<double>(2, 2, 2), v3<double>(2, 2, 2)});
   REQUIRE_FALSE(same_least.has_value());
   CHECK(code_of(same_least) == lob::errc::invalid_argument);
 }
@@ -410,7 +422,8 @@ struct cubic_drag {
 // Random aims for an integrated model: every solution, flown forward with the same
 // flight options, must pass within 1e-9 m of its target.
 template <class M>
-void check_random_aims(const M& model, int count, std::uint64_t seed, bool wind, double flight_tolerance = 1e-9) {
+void check_random_aims(const M& model, int count, std::uint64_t seed, bool wind,
+                       double flight_tolerance = 1e-9) {
   lob::solve_options<double> o;
   o.flight.relative_tolerance = flight_tolerance;
   o.flight.absolute_tolerance = flight_tolerance;
@@ -429,7 +442,8 @@ void check_random_aims(const M& model, int count, std::uint64_t seed, bool wind,
     const double b = bearing(rng);
     const lob::vec3<double> target = v3<double>(d * std::cos(b), d * std::sin(b), rise(rng));
     const double speed = spd(rng);
-    const auto s = lob::aim(model, air, lob::aim_request<double>{lob::vec3<double>::Zero(), target, speed}, o);
+    const auto s =
+        lob::aim(model, air, lob::aim_request<double>{lob::vec3<double>::Zero(), target, speed}, o);
     if (!s) {
       INFO(std::string(s.error().message()));
       if (wind && s.error() == lob::errc::no_convergence) {
@@ -445,7 +459,8 @@ void check_random_aims(const M& model, int count, std::uint64_t seed, bool wind,
     ++solved;
     for (const auto* sol : {&s->flat, &s->lofted}) {
       if (!*sol) continue;
-      const double m = miss_of(model, air, lob::vec3<double>::Zero(), target, **sol, v3<double>(1, 0, 0), o.flight);
+      const double m =
+          miss_of(model, air, lob::vec3<double>::Zero(), target, **sol, v3<double>(1, 0, 0), o.flight);
       worst = std::max(worst, m);
       CHECK(m <= 1e-9);
     }

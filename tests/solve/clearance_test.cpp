@@ -30,7 +30,8 @@ TEST_CASE("the margins over a wall match the vacuum path heights") {
   REQUIRE(flat_h < lofted_h);
 
   // Low wall: both clear, margins as the textbook heights say.
-  const auto low = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, 2.0}});
+  const auto low =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, 2.0}});
   REQUIRE(low.has_value());
   REQUIRE(low->count() == 2);
   CHECK(low->flat->margin == doctest::Approx(flat_h - 2.0).epsilon(1e-12));
@@ -38,7 +39,8 @@ TEST_CASE("the margins over a wall match the vacuum path heights") {
 
   // Between the two paths: only the lofted one clears.
   const double mid = 0.5 * (flat_h + lofted_h);
-  const auto between = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, mid}});
+  const auto between =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, mid}});
   REQUIRE(between.has_value());
   CHECK_FALSE(between->flat.has_value());
   REQUIRE(between->lofted.has_value());
@@ -48,14 +50,16 @@ TEST_CASE("the margins over a wall match the vacuum path heights") {
   const double envelope = v * v / (2 * lob::standard_gravity<double>()) -
                           lob::standard_gravity<double>() * 25 * 25 / (2 * v * v);  // textbook envelope
   const double over = 0.5 * (lofted_h + envelope);
-  const auto both_low = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, over}});
+  const auto both_low =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, over}});
   REQUIRE_FALSE(both_low.has_value());
   CHECK(both_low.error() == lob::errc::out_of_reach);
-  CHECK(static_cast<double>(both_low.error().detail_value()) == doctest::Approx(lofted_h - over).epsilon(1e-9));
+  CHECK(static_cast<double>(both_low.error().detail_value()) ==
+        doctest::Approx(lofted_h - over).epsilon(1e-9));
 
   // Taller than any path at this speed: error naming the highest reachable height.
-  const auto tall =
-      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, envelope + 1.0}});
+  const auto tall = lob::aim_over(
+      model, air, lob::clearance_request<double>{vec::Zero(), target, v, {25.0, envelope + 1.0}});
   REQUIRE_FALSE(tall.has_value());
   CHECK(tall.error() == lob::errc::out_of_reach);
   CHECK(std::strstr(tall.error().message(), "taller than any path") != nullptr);
@@ -67,7 +71,8 @@ TEST_CASE("a cleared aim under drag and wind still hits its target") {
   air.wind = vec(-2, 3, 0);
   const lob::quadratic_drag<double> model{0.005};
   const vec target(45, 10, -1);
-  const auto s = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 35.0, {20.0, 3.0}});
+  const auto s =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 35.0, {20.0, 3.0}});
   REQUIRE(s.has_value());
   REQUIRE(s->count() >= 1);
   for (const auto* c : {&s->flat, &s->lofted}) {
@@ -86,20 +91,25 @@ TEST_CASE("bad obstacles give clear error values") {
   const lob::vacuum<double> model;
   const vec target(60, 0, 0);
   const double nan = std::numeric_limits<double>::quiet_NaN();
-  const auto behind = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {-5.0, 1.0}});
+  const auto behind =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {-5.0, 1.0}});
   REQUIRE_FALSE(behind.has_value());
   CHECK(behind.error() == lob::errc::invalid_argument);
   CHECK(std::strstr(behind.error().message(), "behind the launcher") != nullptr);
-  const auto at_zero = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {0.0, 1.0}});
+  const auto at_zero =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {0.0, 1.0}});
   REQUIRE_FALSE(at_zero.has_value());
   CHECK(at_zero.error() == lob::errc::invalid_argument);
-  const auto beyond = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {70.0, 1.0}});
+  const auto beyond =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {70.0, 1.0}});
   REQUIRE_FALSE(beyond.has_value());
   CHECK(std::strstr(beyond.error().message(), "beyond the target") != nullptr);
-  const auto bad = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {nan, 1.0}});
+  const auto bad =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {nan, 1.0}});
   REQUIRE_FALSE(bad.has_value());
   CHECK(bad.error() == lob::errc::invalid_argument);
-  const auto bad_top = lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {10.0, nan}});
+  const auto bad_top =
+      lob::aim_over(model, air, lob::clearance_request<double>{vec::Zero(), target, 30.0, {10.0, nan}});
   REQUIRE_FALSE(bad_top.has_value());
   CHECK(bad_top.error() == lob::errc::invalid_argument);
 }

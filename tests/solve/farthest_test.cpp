@@ -20,8 +20,8 @@ lob::farthest_request<T> request(const T& speed, const T& launch_height, const T
 
 }  // namespace
 
-TEST_CASE_TEMPLATE("farthest elevation from a height in vacuum follows the shot-put formula", T, float, double,
-                   long double, mp50) {
+TEST_CASE_TEMPLATE("farthest elevation from a height in vacuum follows the shot-put formula", T, float,
+                   double, long double, mp50) {
   using std::abs;
   using std::asin;
   using std::sqrt;
@@ -53,9 +53,9 @@ TEST_CASE("the linear-drag closed form agrees with direct maximisation of the ra
       const double k = alpha * lob::standard_gravity<double>() / v;
       const auto closed = lob::farthest_elevation(lob::linear_drag<double>{k}, air, request(v, h));
       const lob::aim_frame<long double> frame = lob::aim_frame<long double>::make(air_l).value();
-      const auto direct = lob::detail::farthest_direct(lob::linear_drag<long double>{static_cast<long double>(k)}, air_l,
-                                                       frame, request<long double>(20.0L, static_cast<long double>(h)),
-                                                       lob::solve_options<long double>{});
+      const auto direct = lob::detail::farthest_direct(
+          lob::linear_drag<long double>{static_cast<long double>(k)}, air_l, frame,
+          request<long double>(20.0L, static_cast<long double>(h)), lob::solve_options<long double>{});
       if (!direct) {
         // Then the plane is beyond reach and the closed form must say so too.
         CHECK_FALSE(closed.has_value());
@@ -80,19 +80,21 @@ TEST_CASE("the linear-drag closed form keeps its digits as drag vanishes") {
   for (const double alpha : {1e-7, 1e-4, 3e-3}) {
     const double v = 30.0;
     const double k = alpha * lob::standard_gravity<double>() / v;
-    const auto closed = lob::farthest_elevation(lob::linear_drag<double>{k}, lob::medium<double>{}, request(v, 1.5));
+    const auto closed =
+        lob::farthest_elevation(lob::linear_drag<double>{k}, lob::medium<double>{}, request(v, 1.5));
     REQUIRE(closed.has_value());
     lob::solve_options<mp50> o;
     o.max_iterations = 400;
     const auto direct = lob::detail::farthest_direct(lob::linear_drag<mp50>{mp50(k)}, air50, frame,
                                                      request<mp50>(mp50(30), mp50(15) / 10), o);
     REQUIRE(direct.has_value());
-    CHECK(abs(mp50(closed->elevation) - direct->elevation) <= mp50(8 * std::numeric_limits<double>::epsilon()));
+    CHECK(abs(mp50(closed->elevation) - direct->elevation) <=
+          mp50(8 * std::numeric_limits<double>::epsilon()));
   }
 }
 
-TEST_CASE_TEMPLATE("at alpha = 1 on level ground sin(theta*) = 1/(e - 1) and k T* = 1", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("at alpha = 1 on level ground sin(theta*) = 1/(e - 1) and k T* = 1", T, float, double,
+                   long double, mp50) {
   // Derived here: with alpha = k v / g = 1 the envelope equation 1 - (1 - s) e^s = alpha^2
   // has the root s = k T* = 1, so sin(theta*) = alpha / (e^1 - 1).
   using std::abs;
@@ -112,17 +114,20 @@ TEST_CASE("farthest elevation tends to 45 degrees as drag vanishes and lies belo
   const double quarter = std::atan(1.0);
   double last = 0;
   for (const double k : {1.0, 0.3, 0.1, 0.01, 1e-4, 1e-8}) {
-    const auto s = lob::farthest_elevation(lob::linear_drag<double>{k}, lob::medium<double>{}, request(30.0, 0.0));
+    const auto s =
+        lob::farthest_elevation(lob::linear_drag<double>{k}, lob::medium<double>{}, request(30.0, 0.0));
     REQUIRE(s.has_value());
     CHECK(s->elevation < quarter);
     CHECK(s->elevation > last);  // rises towards 45 degrees as the drag falls
     last = s->elevation;
   }
   CHECK(std::abs(last - quarter) <= 1e-7);
-  const auto q = lob::farthest_elevation(lob::quadratic_drag<double>{0.01}, lob::medium<double>{}, request(30.0, 0.0));
+  const auto q =
+      lob::farthest_elevation(lob::quadratic_drag<double>{0.01}, lob::medium<double>{}, request(30.0, 0.0));
   REQUIRE(q.has_value());
   CHECK(q->elevation < quarter);
-  const auto q0 = lob::farthest_elevation(lob::quadratic_drag<double>{1e-9}, lob::medium<double>{}, request(30.0, 0.0));
+  const auto q0 =
+      lob::farthest_elevation(lob::quadratic_drag<double>{1e-9}, lob::medium<double>{}, request(30.0, 0.0));
   REQUIRE(q0.has_value());
   CHECK(std::abs(q0->elevation - quarter) <= 1e-5);
 }
@@ -154,9 +159,10 @@ TEST_CASE("farthest elevation under wind and for quadratic drag is a true maximu
 TEST_CASE("a landing plane above every reachable point is out of reach") {
   const lob::medium<double> air;
   // Vacuum apex of a vertical shot: v^2 / (2 g) (any mechanics textbook), about 11.47 m.
-  for (const auto& s : {lob::farthest_elevation(lob::vacuum<double>{}, air, request(15.0, 0.0, 12.0)),
-                        lob::farthest_elevation(lob::linear_drag<double>{0.1}, air, request(15.0, 0.0, 11.5)),
-                        lob::farthest_elevation(lob::quadratic_drag<double>{0.01}, air, request(15.0, 0.0, 11.5))}) {
+  for (const auto& s :
+       {lob::farthest_elevation(lob::vacuum<double>{}, air, request(15.0, 0.0, 12.0)),
+        lob::farthest_elevation(lob::linear_drag<double>{0.1}, air, request(15.0, 0.0, 11.5)),
+        lob::farthest_elevation(lob::quadratic_drag<double>{0.01}, air, request(15.0, 0.0, 11.5))}) {
     REQUIRE_FALSE(s.has_value());
     CHECK(s.error() == lob::errc::out_of_reach);
   }

@@ -12,8 +12,8 @@ using vec = lob::vec3<double>;
 
 // Distance [m] between body and receiver at the solution's meeting time, flown forward.
 template <class M>
-double meeting_miss(const M& model, const lob::medium<double>& air, const vec& from, const lob::receiver<double>& r,
-                    const lob::aim_solution<double>& s) {
+double meeting_miss(const M& model, const lob::medium<double>& air, const vec& from,
+                    const lob::receiver<double>& r, const lob::aim_solution<double>& s) {
   const auto f = lob::fly(model, air, lob::shot<double>{from, s.velocity});
   REQUIRE(f.has_value());
   const auto at = f->at(s.time_of_flight);
@@ -44,7 +44,8 @@ TEST_CASE("every interception flown forward meets its receiver") {
     lob::medium<double> air;
     air.wind = vec(vel(rng) / 2, vel(rng) / 2, 0);
     const lob::linear_drag<double> model{rate(rng)};
-    const lob::receiver<double> r{vec(pos(rng), pos(rng), pos(rng) / 6), vec(vel(rng), vel(rng), vel(rng) / 8)};
+    const lob::receiver<double> r{vec(pos(rng), pos(rng), pos(rng) / 6),
+                                  vec(vel(rng), vel(rng), vel(rng) / 8)};
     const auto m = lob::intercept(model, air, lob::intercept_request<double>{vec::Zero(), r, 40.0, 0.0});
     if (!m) {
       CHECK(m.error() == lob::errc::out_of_reach);
@@ -67,8 +68,8 @@ TEST_CASE("the direct interception agrees with the exact one") {
   lob::intercept_options<double> o;
   o.samples = 40;
   const auto exact = lob::intercept(model, air, lob::intercept_request<double>{vec::Zero(), r, 38.0, 8.0}, o);
-  const auto direct =
-      lob::detail::intercept_direct(model, air, lob::intercept_request<double>{vec::Zero(), r, 38.0, 8.0}, 8.0, o);
+  const auto direct = lob::detail::intercept_direct(
+      model, air, lob::intercept_request<double>{vec::Zero(), r, 38.0, 8.0}, 8.0, o);
   REQUIRE(exact.has_value());
   REQUIRE(direct.has_value());
   CHECK(direct->earliest->time_of_flight == doctest::Approx(exact->earliest->time_of_flight).epsilon(1e-9));
@@ -94,16 +95,20 @@ TEST_CASE("bad interception input gives error values") {
   const lob::medium<double> air;
   const double nan = std::numeric_limits<double>::quiet_NaN();
   const lob::vacuum<double> model;
-  const auto same = lob::intercept(model, air, lob::intercept_request<double>{vec::Zero(), {vec::Zero(), vec(1, 0, 0)}, 10.0, 0.0});
+  const auto same = lob::intercept(
+      model, air, lob::intercept_request<double>{vec::Zero(), {vec::Zero(), vec(1, 0, 0)}, 10.0, 0.0});
   REQUIRE_FALSE(same.has_value());
   CHECK(same.error() == lob::errc::invalid_argument);
-  const auto badv = lob::intercept(model, air, lob::intercept_request<double>{vec::Zero(), {vec(5, 0, 0), vec(nan, 0, 0)}, 10.0, 0.0});
+  const auto badv = lob::intercept(
+      model, air, lob::intercept_request<double>{vec::Zero(), {vec(5, 0, 0), vec(nan, 0, 0)}, 10.0, 0.0});
   REQUIRE_FALSE(badv.has_value());
   CHECK(badv.error() == lob::errc::invalid_argument);
-  const auto badh = lob::intercept(model, air, lob::intercept_request<double>{vec::Zero(), {vec(5, 0, 0), vec::Zero()}, 10.0, -1.0});
+  const auto badh = lob::intercept(
+      model, air, lob::intercept_request<double>{vec::Zero(), {vec(5, 0, 0), vec::Zero()}, 10.0, -1.0});
   REQUIRE_FALSE(badh.has_value());
   CHECK(badh.error() == lob::errc::invalid_argument);
-  const auto fast = lob::intercept(model, air, lob::intercept_request<double>{vec::Zero(), {vec(50, 0, 0), vec(60, 0, 0)}, 10.0, 5.0});
+  const auto fast = lob::intercept(
+      model, air, lob::intercept_request<double>{vec::Zero(), {vec(50, 0, 0), vec(60, 0, 0)}, 10.0, 5.0});
   REQUIRE_FALSE(fast.has_value());
   CHECK(fast.error() == lob::errc::out_of_reach);
 }

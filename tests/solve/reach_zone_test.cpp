@@ -22,9 +22,9 @@ TEST_CASE_TEMPLATE("the vacuum reach boundary is the textbook parabola", T, floa
   const T v = T(20);
   const T h0 = T(3);
   std::array<lob::boundary_point<T>, 17> pts{};
-  const auto n = lob::reach_boundary(lob::vacuum<T>{}, air,
-                                     lob::reach_request<T>{lob::vec3<T>(T(0), T(0), h0), v, T(1) / T(2), T(-2)},
-                                     std::span<lob::boundary_point<T>>(pts));
+  const auto n = lob::reach_boundary(
+      lob::vacuum<T>{}, air, lob::reach_request<T>{lob::vec3<T>(T(0), T(0), h0), v, T(1) / T(2), T(-2)},
+      std::span<lob::boundary_point<T>>(pts));
   REQUIRE(n.has_value());
   CHECK(*n == pts.size());
   const T scale = v * v / (2 * g);
@@ -48,8 +48,8 @@ TEST_CASE("every boundary point under drag and wind is at the edge of reach") {
                                      std::span<lob::boundary_point<double>>(pts));
   REQUIRE(n.has_value());
   for (std::size_t i = 1; i < pts.size(); ++i) {
-    const auto least =
-        lob::least_speed(model, air, lob::target_request<double>{vec::Zero(), vec(pts[i].distance, 0, pts[i].height)});
+    const auto least = lob::least_speed(
+        model, air, lob::target_request<double>{vec::Zero(), vec(pts[i].distance, 0, pts[i].height)});
     REQUIRE(least.has_value());
     CHECK(std::abs(least->speed - speed) <= 1e-9 * speed);
   }
@@ -59,7 +59,8 @@ TEST_CASE("the footprint is a circle in still air and leans downwind in wind") {
   const lob::medium<double> still;
   const double g = lob::standard_gravity<double>();
   std::array<lob::footprint_point<double>, 8> pts{};
-  const auto n = lob::reach_footprint(lob::vacuum<double>{}, still, lob::reach_request<double>{vec(0, 0, 2), 18.0, 0.0, 0.0},
+  const auto n = lob::reach_footprint(lob::vacuum<double>{}, still,
+                                      lob::reach_request<double>{vec(0, 0, 2), 18.0, 0.0, 0.0},
                                       std::span<lob::footprint_point<double>>(pts));
   REQUIRE(n.has_value());
   // (v/g) sqrt(v^2 + 2 g h) (Lichtenberg & Wills, Am. J. Phys. 46 (1978)).
@@ -82,21 +83,25 @@ TEST_CASE("the footprint is a circle in still air and leans downwind in wind") {
 TEST_CASE("bad reach-zone input gives error values") {
   const lob::medium<double> air;
   std::array<lob::boundary_point<double>, 1> one{};
-  const auto a = lob::reach_boundary(lob::vacuum<double>{}, air, lob::reach_request<double>{vec::Zero(), 10.0, 0.0, 0.0},
-                                     std::span<lob::boundary_point<double>>(one));
+  const auto a =
+      lob::reach_boundary(lob::vacuum<double>{}, air, lob::reach_request<double>{vec::Zero(), 10.0, 0.0, 0.0},
+                          std::span<lob::boundary_point<double>>(one));
   REQUIRE_FALSE(a.has_value());
   CHECK(a.error() == lob::errc::invalid_argument);
   std::array<lob::boundary_point<double>, 4> four{};
-  const auto b = lob::reach_boundary(lob::vacuum<double>{}, air, lob::reach_request<double>{vec::Zero(), 0.0, 0.0, 0.0},
-                                     std::span<lob::boundary_point<double>>(four));
+  const auto b =
+      lob::reach_boundary(lob::vacuum<double>{}, air, lob::reach_request<double>{vec::Zero(), 0.0, 0.0, 0.0},
+                          std::span<lob::boundary_point<double>>(four));
   REQUIRE_FALSE(b.has_value());
   CHECK(b.error() == lob::errc::invalid_argument);
-  const auto c = lob::reach_boundary(lob::vacuum<double>{}, air, lob::reach_request<double>{vec::Zero(), 10.0, 0.0, 50.0},
+  const auto c = lob::reach_boundary(lob::vacuum<double>{}, air,
+                                     lob::reach_request<double>{vec::Zero(), 10.0, 0.0, 50.0},
                                      std::span<lob::boundary_point<double>>(four));
   REQUIRE_FALSE(c.has_value());
   CHECK(c.error() == lob::errc::out_of_reach);
   std::span<lob::footprint_point<double>> none;
-  const auto d = lob::reach_footprint(lob::vacuum<double>{}, air, lob::reach_request<double>{vec::Zero(), 10.0, 0.0, 0.0}, none);
+  const auto d = lob::reach_footprint(lob::vacuum<double>{}, air,
+                                      lob::reach_request<double>{vec::Zero(), 10.0, 0.0, 0.0}, none);
   REQUIRE_FALSE(d.has_value());
   CHECK(d.error() == lob::errc::invalid_argument);
 }

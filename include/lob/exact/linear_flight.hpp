@@ -166,7 +166,8 @@ class linear_flight {
       if (k_ == T(0)) return checked(state_at(T(distance / u)));
       const T x = k_ * distance / u;
       if (!(x < T(1)))
-        return fail(errc::never_reaches, "drag stops the body short of that distance; limit u/k =", T(u / k_));
+        return fail(errc::never_reaches,
+                    "drag stops the body short of that distance; limit u/k =", T(u / k_));
       return checked(state_at(T(distance / u * detail::log1p_over_x(T(-x)))));
     }
     const result<T> t = distance_time_in_wind(distance, wind_speed);
@@ -181,8 +182,9 @@ class linear_flight {
       return fail(errc::invalid_argument, "sample end time must be finite and >= 0", t_end);
     const std::size_t n = out.size();
     for (std::size_t i = 0; i < n; ++i) {
-      const T t = n == 1 || i + 1 == n ? (n == 1 ? T(0) : t_end)
-                                       : T(t_end * T(static_cast<long long>(i)) / T(static_cast<long long>(n - 1)));
+      const T t = n == 1 || i + 1 == n
+                      ? (n == 1 ? T(0) : t_end)
+                      : T(t_end * T(static_cast<long long>(i)) / T(static_cast<long long>(n - 1)));
       const result<state<T>> s = checked(state_at(t));
       if (!s) return unexpected<error>(s.error());
       out[i] = *s;
@@ -200,7 +202,8 @@ class linear_flight {
       : k_(rate), air_(air), launch_(launch) {
     using std::sqrt;
     g_ = sqrt(T(air.gravity.squaredNorm()));
-    up_ = g_ > T(0) ? vec3<T>(-air.gravity / g_) : vec3<T>(vec3<T>::Zero());  // exact for axis-aligned gravity
+    up_ =
+        g_ > T(0) ? vec3<T>(-air.gravity / g_) : vec3<T>(vec3<T>::Zero());  // exact for axis-aligned gravity
     w_ = up_.dot(air.wind);
     v_ = up_.dot(launch.velocity);
     h0_ = up_.dot(launch.position);
@@ -408,7 +411,8 @@ class linear_flight {
         if (!(step >= T(0)) || !is_finite(step)) break;  // from below, steps never go back
         tau += step;
         if (step <= 2 * eps * tau) return T(tau / k_);
-        if (step * step <= eps * tau * tau && rho * e * step * step <= eps * tau * slope / 2) return T(tau / k_);
+        if (step * step <= eps * tau * tau && rho * e * step * step <= eps * tau * slope / 2)
+          return T(tau / k_);
       }
     }
     const T speed = abs(climb0());
@@ -466,12 +470,15 @@ class linear_flight {
     const bool turns = v < T(0) && G < T(0);
     const T t_turn = turns ? T(detail::log1p(T(k_ * v / G)) / k_) : T(0);
     if (v >= T(0) && branch == side::falling)
-      return fail(errc::never_reaches, "the body never falls: the upward wind is at least the fall speed, wind", w_);
+      return fail(errc::never_reaches,
+                  "the body never falls: the upward wind is at least the fall speed, wind", w_);
     if (v >= T(0) || branch == side::rising) {
       const T start = v >= T(0) ? T(0) : t_turn;
-      if (v < T(0) && !turns) return fail(errc::never_reaches, "the body sinks towards a level it never passes, height change", dh);
+      if (v < T(0) && !turns)
+        return fail(errc::never_reaches, "the body sinks towards a level it never passes, height change", dh);
       const T low = rise(start);
-      if (dh < low) return fail(errc::never_reaches, "rising branch starts above that height, by", T(low - dh));
+      if (dh < low)
+        return fail(errc::never_reaches, "rising branch starts above that height, by", T(low - dh));
       if (dh == low) return start;
       return polish_open(dh, start, start, +1);
     }
@@ -479,7 +486,8 @@ class linear_flight {
     if (dh == T(0)) return T(0);
     if (!turns) return polish_open(dh, T(0), T(0), -1);
     const T bottom = rise(t_turn);
-    if (dh < bottom) return fail(errc::never_reaches, "the body never sinks that low, short by", T(bottom - dh));
+    if (dh < bottom)
+      return fail(errc::never_reaches, "the body never sinks that low, short by", T(bottom - dh));
     return polish(dh, T(0), t_turn, t_turn / 2, -1);
   }
 

@@ -120,8 +120,9 @@ template <Real T, class Accel>
   }
   // Stage 1 enters through f1 = g + d1 (gravity included); the other stages' gravity
   // through (c_i - a_i1) h g.
-  const T c3 = T(3) / T(10) - T(3) / T(40), c4 = T(4) / T(5) - T(44) / T(45), c5 = T(8) / T(9) - T(19372) / T(6561),
-          c6 = T(1) - T(9017) / T(3168), c7 = T(1) - T(35) / T(384), ce = T(71) / T(57600);
+  const T c3 = T(3) / T(10) - T(3) / T(40), c4 = T(4) / T(5) - T(44) / T(45),
+          c5 = T(8) / T(9) - T(19372) / T(6561), c6 = T(1) - T(9017) / T(3168), c7 = T(1) - T(35) / T(384),
+          ce = T(71) / T(57600);
   T u2[3], s3[3], s4[3], s5[3], s6[3], s7[3], ev[3];
   for (int i = 0; i < 3; ++i) {
     u2[i] = u0[i] + a21 * f1[i];
@@ -303,8 +304,7 @@ class dp5_dense {
     const T th = (t - t0_) / h_;
     const T th1 = T(1) - th;
     phase<T> y;
-    y.position = y0_.position +
-                 th * (diff_.position + th1 * (bspl_.position + th * (r4_.position + th1 * r5_.position)));
+    y.position = position(t);
     y.velocity = y0_.velocity +
                  th * (diff_.velocity + th1 * (bspl_.velocity + th * (r4_.velocity + th1 * r5_.velocity)));
     return y;

@@ -1022,9 +1022,9 @@ struct hodograph_aim_root {
 };
 
 template <Real T>
-[[nodiscard]] result<hodograph_aim_root<T>> hodograph_aim(const T& c, const T& g, const T& v0, const T& distance, const T& rise,
-                                      const T& guess, const std::optional<T>& inclination_guess = std::nullopt,
-                                      int max_iterations = 40) {
+[[nodiscard]] result<hodograph_aim_root<T>> hodograph_aim(
+    const T& c, const T& g, const T& v0, const T& distance, const T& rise, const T& guess,
+    const std::optional<T>& inclination_guess = std::nullopt, int max_iterations = 40) {
   using std::abs;
   using std::cos;
   using std::ldexp;

@@ -302,7 +302,8 @@ class integrated_flight {
     }
   };
 
-  integrated_flight(const M& model, const medium<T>& air, const shot<T>& launch, const flight_options<T>& options)
+  integrated_flight(const M& model, const medium<T>& air, const shot<T>& launch,
+                    const flight_options<T>& options)
       : model_(model), air_(air), launch_(launch), options_(options) {
     using std::max;
     using std::sqrt;
@@ -354,7 +355,8 @@ class integrated_flight {
       return fail(errc::invalid_argument, "unknown stepping method", static_cast<int>(o.method));
     if (!is_finite(o.relative_tolerance) || o.relative_tolerance < lowest ||
         o.relative_tolerance > T(1) / T(100))
-      return fail(errc::invalid_argument, "relative tolerance must be in [1e-15, 1e-2]", o.relative_tolerance);
+      return fail(errc::invalid_argument, "relative tolerance must be in [1e-15, 1e-2]",
+                  o.relative_tolerance);
     if (!is_finite(o.absolute_tolerance) || !(o.absolute_tolerance > T(0)))
       return fail(errc::invalid_argument, "absolute tolerance must be finite and > 0", o.absolute_tolerance);
     if (!is_finite(o.initial_step) || o.initial_step < T(0))
@@ -404,7 +406,8 @@ class integrated_flight {
     std::uintmax_t iterations = 200;
     const std::pair<T, T> r = boost::math::tools::toms748_solve(
         f, a, b, fa, fb, boost::math::tools::eps_tolerance<T>(), iterations, detail::no_throw_policy{});
-    if (iterations >= 200) return fail(errc::no_convergence, "event location did not converge, near t =", r.first);
+    if (iterations >= 200)
+      return fail(errc::no_convergence, "event location did not converge, near t =", r.first);
     return T((r.first + r.second) / 2);
   }
 
@@ -536,7 +539,8 @@ class integrated_flight {
       if (n >= options_.max_steps)
         return fail(errc::step_limit, "integration used its whole step budget (max_steps) at t =", t0);
       const T t1 = T(n + 1) * h;
-      const detail::phase<T> y1 = rk4 ? detail::rk4_step(f, y, fy, h) : detail::semi_implicit_euler_step(y, fy, h);
+      const detail::phase<T> y1 =
+          rk4 ? detail::rk4_step(f, y, fy, h) : detail::semi_implicit_euler_step(y, fy, h);
       const detail::phase<T> f1 = detail::derivative(f, y1);
       const detail::hermite_piece<T> curve(t0, h, y, fy, y1, f1);
       if (before_apex && !(T(up_.dot(y1.velocity)) > T(0))) {
@@ -560,8 +564,8 @@ class integrated_flight {
   // downward launch, and a rising crossing only above the lowest point.
   [[nodiscard]] result<state<T>> lifted_crossing(const T& dh, side branch) const {
     if (branch == side::falling && climb0_ >= T(0))
-      return fail(errc::never_reaches, "an updraft at least the fall speed carries the body up for good, wind =",
-                  w_up_);
+      return fail(errc::never_reaches,
+                  "an updraft at least the fall speed carries the body up for good, wind =", w_up_);
     if (branch == side::rising && climb0_ >= T(0)) {
       if (dh < T(0)) return fail(errc::never_reaches, "rising branch starts above that height, by", T(-dh));
       if (dh == T(0)) return make_state(T(0), y0_);

@@ -54,7 +54,8 @@ struct body {
     if (!is_finite(drag_coefficient) || !(drag_coefficient > T(0)))
       return fail(errc::invalid_argument, "body drag coefficient must be finite and > 0", drag_coefficient);
     if (!is_finite(reference_length) || reference_length < T(0))
-      return fail(errc::invalid_argument, "body reference length must be finite and >= 0 [m]", reference_length);
+      return fail(errc::invalid_argument, "body reference length must be finite and >= 0 [m]",
+                  reference_length);
     if (!is_finite(volume) || volume < T(0))
       return fail(errc::invalid_argument, "body volume must be finite and >= 0 [m^3]", volume);
     return {};

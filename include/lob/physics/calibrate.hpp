@@ -125,8 +125,8 @@ class calibration_problem : public Eigen::DenseFunctor<lm_scalar<T>> {
   using typename base::JacobianType;
   using typename base::ValueType;
 
-  calibration_problem(const MakeModel& make, std::span<const measured_flight<T>> flights, const medium<T>& air,
-                      const fit_options<T>& options, int unknowns, int values)
+  calibration_problem(const MakeModel& make, std::span<const measured_flight<T>> flights,
+                      const medium<T>& air, const fit_options<T>& options, int unknowns, int values)
       : base(unknowns, values), make_(make), flights_(flights), air_(air), options_(options) {}
 
   // Raw residuals (measured - predicted) for the unknowns x; false (with failure_ set) if a
@@ -234,8 +234,8 @@ class calibration_problem : public Eigen::DenseFunctor<lm_scalar<T>> {
 /// not identifiable from the data (singular J^T J).
 template <Real T, class MakeModel>
 [[nodiscard]] result<fit_result<T>> calibrate(const MakeModel& make, const T& initial,
-                                              std::span<const measured_flight<T>> flights, const medium<T>& air,
-                                              const fit_options<T>& options = {}) {
+                                              std::span<const measured_flight<T>> flights,
+                                              const medium<T>& air, const fit_options<T>& options = {}) {
   using std::exp;
   using std::log;
   using std::sqrt;
@@ -266,8 +266,8 @@ template <Real T, class MakeModel>
   const int unknowns = 1 + per_flight * static_cast<int>(flights.size());
   const int values = static_cast<int>(3 * count);
   if (values <= unknowns)
-    return fail(errc::too_few_samples, "more residual components (3 per sample) than unknowns needed, samples",
-                count);
+    return fail(errc::too_few_samples,
+                "more residual components (3 per sample) than unknowns needed, samples", count);
 
   using problem_type = detail::calibration_problem<T, MakeModel>;
   problem_type problem(make, flights, air, options, unknowns, values);
@@ -318,7 +318,8 @@ template <Real T, class MakeModel>
         magnitudes.push_back(abs(T(r(c))));
       }
     const std::size_t mid = magnitudes.size() / 2;
-    std::nth_element(magnitudes.begin(), magnitudes.begin() + static_cast<std::ptrdiff_t>(mid), magnitudes.end());
+    std::nth_element(magnitudes.begin(), magnitudes.begin() + static_cast<std::ptrdiff_t>(mid),
+                     magnitudes.end());
     const T mad = T(14826) / T(10000) * magnitudes[mid];
     s2 = static_cast<S>(T(mad * mad * T(values) / T(values - unknowns)));
   }
@@ -332,7 +333,8 @@ template <Real T, class MakeModel>
   if (ldlt.info() != Eigen::Success ||
       !(smallest_pivot > S(100) * std::numeric_limits<S>::epsilon() * largest_pivot) ||
       !std::isfinite(covariance_unscaled(0, 0)))
-    return fail(errc::no_convergence, "the unknowns are not identifiable from these samples (singular J^T J)");
+    return fail(errc::no_convergence,
+                "the unknowns are not identifiable from these samples (singular J^T J)");
 
   fit_result<T> out;
   out.parameter = exp(T(x(0)));

@@ -40,7 +40,8 @@ struct correlated_drag {
   /// `invalid_argument` unless both parameters are finite and > 0.
   [[nodiscard]] status check() const {
     if (!is_finite(viscous_rate) || !(viscous_rate > T(0)))
-      return fail(errc::invalid_argument, "correlated drag viscous rate must be finite and > 0", viscous_rate);
+      return fail(errc::invalid_argument, "correlated drag viscous rate must be finite and > 0",
+                  viscous_rate);
     if (!is_finite(reynolds_per_speed) || !(reynolds_per_speed > T(0)))
       return fail(errc::invalid_argument, "correlated drag Reynolds per speed must be finite and > 0",
                   reynolds_per_speed);

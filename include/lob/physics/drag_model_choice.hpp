@@ -30,8 +30,8 @@ template <Real T>
 /// Quadratic drag of a sphere with a constant drag coefficient `cd` (for instance
 /// `model_advice::quadratic_cd`): c = rho Cd A / (2 m) [1/m].
 template <Real T>
-[[nodiscard]] result<quadratic_drag<T>> make_quadratic_drag(const sphere<T>& ball, const air_properties<T>& air,
-                                                            const T& cd) {
+[[nodiscard]] result<quadratic_drag<T>> make_quadratic_drag(const sphere<T>& ball,
+                                                            const air_properties<T>& air, const T& cd) {
   if (const status ok = ball.check(); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
   if (!is_finite(cd) || !(cd > T(0)))
@@ -41,7 +41,8 @@ template <Real T>
 
 /// Quadratic drag of a general body with its own drag coefficient: c = rho Cd A / (2 m).
 template <Real T>
-[[nodiscard]] result<quadratic_drag<T>> make_quadratic_drag(const body<T>& thing, const air_properties<T>& air) {
+[[nodiscard]] result<quadratic_drag<T>> make_quadratic_drag(const body<T>& thing,
+                                                            const air_properties<T>& air) {
   if (const status ok = thing.check(); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
   return quadratic_drag<T>{
@@ -174,7 +175,8 @@ template <Real T>
     std::uintmax_t budget = 200;
     const std::pair<T, T> best = boost::math::tools::brent_find_minima(
         [&](const T& cd) { return worst_error(k, T(vr * rps * cd)); }, T(0), cd_top, bits, budget);
-    if (budget >= 200) return fail(errc::no_convergence, "drag coefficient fit did not converge, Cd ~", best.first);
+    if (budget >= 200)
+      return fail(errc::no_convergence, "drag coefficient fit did not converge, Cd ~", best.first);
     coefficient = best.first;
     return {};
   };
@@ -216,8 +218,9 @@ template <Real T>
                 "linear %.1f%%, quadratic %.1f%%, linear+quadratic %.1f%%",
                 static_cast<double>(advice.reynolds_min), static_cast<double>(advice.reynolds_max), regime,
                 static_cast<double>(advice.mach_max), advice.mach_max > T(3) / T(10) ? ", compressible!" : "",
-                to_string(advice.kind).data(), why, 100 * static_cast<double>(chosen_error), about.name.data(),
-                100 * static_cast<double>(tol), 100 * static_cast<double>(advice.linear_error),
+                to_string(advice.kind).data(), why, 100 * static_cast<double>(chosen_error),
+                about.name.data(), 100 * static_cast<double>(tol),
+                100 * static_cast<double>(advice.linear_error),
                 100 * static_cast<double>(advice.quadratic_error),
                 100 * static_cast<double>(advice.linear_quadratic_error));
   return advice;

@@ -113,8 +113,8 @@ template <Real T>
 /// correlation's `info(c).max_reynolds`). Errors: `invalid_argument` for a non-finite or
 /// non-positive Re, or one above the correlation's range.
 template <Real T>
-[[nodiscard]] result<T> sphere_drag_coefficient(const T& reynolds,
-                                                sphere_correlation c = sphere_correlation::clift_gauvin_1970) {
+[[nodiscard]] result<T> sphere_drag_coefficient(
+    const T& reynolds, sphere_correlation c = sphere_correlation::clift_gauvin_1970) {
   if (!is_finite(reynolds) || !(reynolds > T(0)))
     return fail(errc::invalid_argument, "Reynolds number must be finite and > 0", reynolds);
   if (reynolds > T(info(c).max_reynolds))

@@ -79,7 +79,8 @@ template <Real T>
     lo /= T(4);
     f_lo = balance(lo);
   }
-  if (!(f_lo < T(0))) return fail(errc::no_convergence, "could not bracket the terminal Reynolds number, N =", n_best);
+  if (!(f_lo < T(0)))
+    return fail(errc::no_convergence, "could not bracket the terminal Reynolds number, N =", n_best);
   T hi = lo;
   T f_hi = f_lo;
   for (int i = 0; i < 4000 && f_hi < T(0); ++i) {
@@ -89,7 +90,8 @@ template <Real T>
     if (hi >= re_cap) hi = re_cap;
     f_hi = balance(hi);
   }
-  if (f_hi < T(0)) return fail(errc::no_convergence, "could not bracket the terminal Reynolds number, N =", n_best);
+  if (f_hi < T(0))
+    return fail(errc::no_convergence, "could not bracket the terminal Reynolds number, N =", n_best);
 
   T re = hi;
   int iterations = 0;
@@ -99,7 +101,8 @@ template <Real T>
     const boost::math::tools::eps_tolerance<T> tol(std::numeric_limits<T>::digits - 2);
     const std::pair<T, T> root =
         boost::math::tools::toms748_solve(balance, lo, hi, f_lo, f_hi, tol, used, detail::no_throw_policy{});
-    if (used >= budget) return fail(errc::no_convergence, "terminal speed root finder used its budget, Re ~", re);
+    if (used >= budget)
+      return fail(errc::no_convergence, "terminal speed root finder used its budget, Re ~", re);
     re = (root.first + root.second) / T(2);
     iterations = static_cast<int>(used);
   }

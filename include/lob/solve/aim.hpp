@@ -103,8 +103,9 @@ template <DragModel M, Real T = scalar_of<M>>
 // records the arrival: `known` when a trial flight has it already, else from the closed
 // form for vacuum and linear drag, else by flying it with lob::fly().
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<aim_solution<T>> complete(const M& model, const medium<T>& air, const aim_frame<T>& frame,
-                                               const vec3<T>& launch, const vec3<T>& velocity, const T& time,
+[[nodiscard]] result<aim_solution<T>> complete(const M& model, const medium<T>& air,
+                                               const aim_frame<T>& frame, const vec3<T>& launch,
+                                               const vec3<T>& velocity, const T& time,
                                                const solve_options<T>& o,
                                                const std::optional<state<T>>& known = std::nullopt) {
   using std::sqrt;
@@ -316,7 +317,8 @@ struct time_roots {
 // (g^2/4) s^2 - (u^2 - g H) s + |D|^2 = 0 (any mechanics textbook), the smaller one from
 // the product of the roots so that it does not cancel. False if out of reach.
 template <Real T>
-[[nodiscard]] bool vacuum_times(const vec3<T>& offset, const vec3<T>& gravity, const T& u, T& flat, T& lofted) {
+[[nodiscard]] bool vacuum_times(const vec3<T>& offset, const vec3<T>& gravity, const T& u, T& flat,
+                                T& lofted) {
   using std::sqrt;
   const T g2 = gravity.squaredNorm();
   const T b = u * u + T(offset.dot(gravity));  // u^2 - g H
@@ -490,8 +492,8 @@ struct shooter {
       const T inclination = atan2(v_up, T(sqrt(T((v - v_up * frame.up).squaredNorm()))));
       const T g = sqrt(T(air.gravity.squaredNorm()));
       const result<detail::hodograph_aim_root<T>> e =
-          detail::hodograph_aim(T(model_traits<M>::quadratic_coefficient(model)), g, speed, distance, rise, guess,
-                                std::optional<T>(inclination));
+          detail::hodograph_aim(T(model_traits<M>::quadratic_coefficient(model)), g, speed, distance, rise,
+                                guess, std::optional<T>(inclination));
       if (!e || !(e->elevation > lo && e->elevation < hi)) return std::nullopt;
       const detail::hodograph_point<T>& end = e->arrival;
       const vec3<T> ahead = level / distance;
@@ -622,9 +624,10 @@ template <DragModel M, Real T = scalar_of<M>>
         sh.slot = 0;
         const std::optional<typename shooter<M>::exact_hit> e1 =
             sh.exact_root(azimuth, speed, a, &at_a, a, mid, tol);
-        const result<T> r1 = e1 ? result<T>(e1->elevation)
-                                : secant_in_bracket(miss, a, mid, f_a, f_mid, g1, tol, bits, sh.opts.max_iterations,
-                                                    "aim: flat root did not converge");
+        const result<T> r1 =
+            e1 ? result<T>(e1->elevation)
+               : secant_in_bracket(miss, a, mid, f_a, f_mid, g1, tol, bits, sh.opts.max_iterations,
+                                   "aim: flat root did not converge");
         if (!r1) return unexpected<error>(r1.error());
         sh.slot = 1;
         std::optional<typename shooter<M>::exact_hit> e2;
@@ -645,9 +648,10 @@ template <DragModel M, Real T = scalar_of<M>>
           }
           e2 = sh.exact_root(azimuth, speed, guess, nullptr, mid, b, tol);
         }
-        const result<T> r2 = e2 ? result<T>(e2->elevation)
-                                : secant_in_bracket(miss, mid, b, f_mid, f_b, g2, tol, bits, sh.opts.max_iterations,
-                                                    "aim: lofted root did not converge");
+        const result<T> r2 =
+            e2 ? result<T>(e2->elevation)
+               : secant_in_bracket(miss, mid, b, f_mid, f_b, g2, tol, bits, sh.opts.max_iterations,
+                                   "aim: lofted root did not converge");
         if (!r2) return unexpected<error>(r2.error());
         out.flat = *r1;
         out.lofted = *r2;
@@ -665,7 +669,8 @@ template <DragModel M, Real T = scalar_of<M>>
   }
   const T f_top = miss(top);
   auto neg = [&](const T& e) { return T(-miss(e)); };
-  result<std::pair<T, T>> peak = brent_min(neg, lo, top, sh.opts.max_iterations, 12, "aim: peak search did not converge");
+  result<std::pair<T, T>> peak =
+      brent_min(neg, lo, top, sh.opts.max_iterations, 12, "aim: peak search did not converge");
   if (!peak) return unexpected<error>(peak.error());
   if (-peak->second < T(0)) {
     peak = brent_min(neg, lo, top, sh.opts.max_iterations, std::numeric_limits<T>::digits / 2,
@@ -681,8 +686,8 @@ template <DragModel M, Real T = scalar_of<M>>
     return out;
   }
   if (f_lo < T(0)) {
-    const result<T> r = bracketed_root(miss, lo, out.best_elevation, f_lo, out.best_miss, sh.opts.max_iterations,
-                                       "aim: flat root did not converge", bits);
+    const result<T> r = bracketed_root(miss, lo, out.best_elevation, f_lo, out.best_miss,
+                                       sh.opts.max_iterations, "aim: flat root did not converge", bits);
     if (!r) return unexpected<error>(r.error());
     out.flat = *r;
   }
@@ -701,8 +706,8 @@ template <DragModel M, Real T = scalar_of<M>>
 // a TOMS 748 bracket would cost two more flights; the start is within ~1e-6 of the root,
 // so 2-4 flights usually suffice. Capped; gives up with no_convergence.
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<T> polish_elevation(const shooter<M>& sh, const T& azimuth, const T& speed, const T& theta0,
-                                         const T& tol) {
+[[nodiscard]] result<T> polish_elevation(const shooter<M>& sh, const T& azimuth, const T& speed,
+                                         const T& theta0, const T& tol) {
   using std::abs;
   const T eps = epsilon<T>();
   T x0 = theta0;
@@ -727,7 +732,8 @@ template <DragModel M, Real T = scalar_of<M>>
       if (!(hi - lo > 4 * eps * (T(1) + abs(x2)))) return x2;
     }
     const T f2 = sh.probe(x2, azimuth, speed).miss;
-    if (!bracket && (f2 < T(0)) != (f1 < T(0))) bracket = f2 < T(0) ? std::pair<T, T>(x2, x1) : std::pair<T, T>(x1, x2);
+    if (!bracket && (f2 < T(0)) != (f1 < T(0)))
+      bracket = f2 < T(0) ? std::pair<T, T>(x2, x1) : std::pair<T, T>(x1, x2);
     else note(x2, f2);
     if (abs(T(x2 - x1)) <= 4 * eps * (T(1) + abs(x2))) return abs(f2) <= abs(f1) ? x2 : x1;
     x0 = x1;
@@ -764,8 +770,8 @@ template <DragModel M, Real T = scalar_of<M>>
 // first (the azimuth step is a few ulp, or three steps bring no improvement) the best
 // iterate is returned if within 1000 tol. Capped by opts.max_azimuth_iterations.
 template <class Solve, Real T>
-[[nodiscard]] auto correct_azimuth(Solve&& solve_at, const T& bearing, const T& distance, const T& tol, int cap)
-    -> decltype(solve_at(bearing)) {
+[[nodiscard]] auto correct_azimuth(Solve&& solve_at, const T& bearing, const T& distance, const T& tol,
+                                   int cap) -> decltype(solve_at(bearing)) {
   using std::abs;
   using R = decltype(solve_at(bearing));
   const T eps = epsilon<T>();
@@ -805,7 +811,8 @@ template <class Solve, Real T>
   // At the rounding floor of integrated flights: accept the best iterate if it is within
   // 1000 tol (still far below 1e-9 m at the default tol), else report failure.
   if (abs(best->drift) * distance <= T(1000) * tol) return best;
-  return fail(errc::no_convergence, "crosswind azimuth correction did not converge, drift [rad]", best->drift);
+  return fail(errc::no_convergence, "crosswind azimuth correction did not converge, drift [rad]",
+              best->drift);
 }
 
 // The out_of_reach error of an aim: carries the farthest distance reachable at the
@@ -830,8 +837,9 @@ struct branch_hit {
 /// The any-model aim: fixed-azimuth elevation roots, then a crosswind correction per
 /// branch. Public through `aim()`; callable directly to check the closed forms.
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<aim_solutions<T>> aim_direct(const M& model, const medium<T>& air, const aim_frame<T>& frame,
-                                                  const aim_request<T>& req, const solve_options<T>& o) {
+[[nodiscard]] result<aim_solutions<T>> aim_direct(const M& model, const medium<T>& air,
+                                                  const aim_frame<T>& frame, const aim_request<T>& req,
+                                                  const solve_options<T>& o) {
   using std::abs;
   using std::sqrt;
   shooter<M> sh = shooter<M>::make(model, air, frame, o, req.launch_point, req.target);
@@ -843,7 +851,8 @@ template <DragModel M, Real T = scalar_of<M>>
     // Straight above or below: vertical shots, if the air has no horizontal wind.
     const vec3<T> wl = air.wind - T(frame.up.dot(air.wind)) * frame.up;
     if (wl.squaredNorm() > T(0))
-      return fail(errc::invalid_argument, "target straight above or below the launch under a horizontal wind");
+      return fail(errc::invalid_argument,
+                  "target straight above or below the launch under a horizontal wind");
     const T h = height(req.target, air);
     for (int b = 0; b < 2; ++b) {
       const T elev = (b == 0 && sh.rise < T(0)) ? T(-half_pi<T>()) : half_pi<T>();
@@ -856,7 +865,9 @@ template <DragModel M, Real T = scalar_of<M>>
         if (b == 0 && c.error() == errc::never_reaches) {
           const result<state<T>> a = flight->apex();
           error e(errc::out_of_reach, "target above the highest reachable point");
-          if (a) e.with_detail_value(static_cast<long double>(height(a->position, air) - height(req.launch_point, air)));
+          if (a)
+            e.with_detail_value(
+                static_cast<long double>(height(a->position, air) - height(req.launch_point, air)));
           return unexpected<error>(e);
         }
         return unexpected<error>(c.error());
@@ -873,7 +884,8 @@ template <DragModel M, Real T = scalar_of<M>>
   // tolerance: its roots need neither the loose pass nor the polish.
   bool exact_probes = model_traits<M>::closed_form;
   if constexpr (model_traits<M>::quadratic_fast_path)
-    exact_probes = o.flight.use_fast_paths && o.flight.method == stepper::adaptive && air.wind == vec3<T>::Zero();
+    exact_probes =
+        o.flight.use_fast_paths && o.flight.method == stepper::adaptive && air.wind == vec3<T>::Zero();
   sh.exact = exact_probes && !model_traits<M>::closed_form;
   shooter<M> coarse = sh;
   int coarse_bits = root_bits<T>();
@@ -925,10 +937,12 @@ template <DragModel M, Real T = scalar_of<M>>
 }
 
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<aim_solutions<T>> aim_closed(const M& model, const medium<T>& air, const aim_frame<T>& frame,
-                                                  const aim_request<T>& req, const solve_options<T>& o) {
+[[nodiscard]] result<aim_solutions<T>> aim_closed(const M& model, const medium<T>& air,
+                                                  const aim_frame<T>& frame, const aim_request<T>& req,
+                                                  const solve_options<T>& o) {
   const vec3<T> offset = req.target - req.launch_point;
-  const time_form<T> f = make_time_form(model_traits<M>::linear_rate(model), air, offset, vec3<T>(vec3<T>::Zero()));
+  const time_form<T> f =
+      make_time_form(model_traits<M>::linear_rate(model), air, offset, vec3<T>(vec3<T>::Zero()));
   const result<time_roots<T>> r = time_form_roots(f, req.speed, time_scale(offset, air), o.max_iterations);
   if (!r) {
     if (r.error() != errc::out_of_reach) return unexpected<error>(r.error());
@@ -1016,7 +1030,8 @@ template <DragModel M, Real T = scalar_of<M>>
   T hi = lo * 2;
   T f_hi = miss(hi);
   for (int i = 0; !(f_hi > T(0)); ++i) {
-    if (i > 200 || !is_finite(hi)) return fail(errc::out_of_reach, "no speed makes this elevation reach the target");
+    if (i > 200 || !is_finite(hi))
+      return fail(errc::out_of_reach, "no speed makes this elevation reach the target");
     lo = hi;
     f_lo = f_hi;
     hi *= 2;
@@ -1067,8 +1082,8 @@ template <DragModel M, Real T = scalar_of<M>>
     return fail(errc::invalid_argument, "target straight above or below: the elevation must be vertical");
   const T sight = atan2(sh.rise, sh.distance);
   if (!(req.elevation > sight))
-    return fail(errc::out_of_reach, "elevation is at or below the line of sight to the target, which is [rad]",
-                sight);
+    return fail(errc::out_of_reach,
+                "elevation is at or below the line of sight to the target, which is [rad]", sight);
   return detail::speed_direct(sh, req.elevation);
 }
 
@@ -1077,7 +1092,8 @@ template <DragModel M, Real T = scalar_of<M>>
 /// flight (exact, any wind). Other models: Brent's method over the elevation of
 /// `speed_for_elevation` (elevation to about half the digits of T, speed to nearly all).
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<aim_solution<T>> least_speed(const M& model, const medium<T>& air, const target_request<T>& req,
+[[nodiscard]] result<aim_solution<T>> least_speed(const M& model, const medium<T>& air,
+                                                  const target_request<T>& req,
                                                   const solve_options<T>& o = {}) {
   using std::atan2;
   if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
@@ -1093,9 +1109,11 @@ template <DragModel M, Real T = scalar_of<M>>
     if (!t) return unexpected<error>(t.error());
     return detail::complete(model, air, *frame, req.launch_point, f.velocity(*t), *t, o);
   } else {
-    const detail::shooter<M> sh = detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
+    const detail::shooter<M> sh =
+        detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
     if (!(sh.distance > T(0)))
-      return fail(errc::invalid_argument, "target straight above or below: least speed needs a closed-form model");
+      return fail(errc::invalid_argument,
+                  "target straight above or below: least speed needs a closed-form model");
     const T sight = atan2(sh.rise, sh.distance);
     const T top = detail::half_pi<T>() * (T(1) - T(1) / T(1 << 20));
     const T big = std::numeric_limits<T>::max() / T(16);

@@ -75,8 +75,10 @@ template <DragModel M, Real T = scalar_of<M>>
   if (!is_finite(req.wall.top_height))
     return fail(errc::invalid_argument, "obstacle top height must be finite", req.wall.top_height);
   if (!(req.wall.distance > T(0)))
-    return fail(errc::invalid_argument, "obstacle is behind the launcher or at it, distance", req.wall.distance);
-  const result<aim_solutions<T>> aims = aim(model, air, aim_request<T>{req.launch_point, req.target, req.speed}, o);
+    return fail(errc::invalid_argument, "obstacle is behind the launcher or at it, distance",
+                req.wall.distance);
+  const result<aim_solutions<T>> aims =
+      aim(model, air, aim_request<T>{req.launch_point, req.target, req.speed}, o);
   if (!aims) return unexpected<error>(aims.error());
   const vec3<T> off = horizontal(vec3<T>(req.target - req.launch_point), air);
   const T target_distance = sqrt(T(off.squaredNorm()));
@@ -88,7 +90,8 @@ template <DragModel M, Real T = scalar_of<M>>
   for (int b = 0; b < 2; ++b) {
     const std::optional<aim_solution<T>>& s = b == 0 ? aims->flat : aims->lofted;
     if (!s) continue;
-    const result<T> h = detail::height_at_distance(model, air, req.launch_point, s->velocity, req.wall.distance, o);
+    const result<T> h =
+        detail::height_at_distance(model, air, req.launch_point, s->velocity, req.wall.distance, o);
     if (!h) return unexpected<error>(h.error());
     const T margin = *h - req.wall.top_height;
     if (margin > best) best = margin;

@@ -94,7 +94,8 @@ template <Real T>
   }
   T hi = lo > T(1) ? T(2 * lo) : T(2);
   for (int i = 0; p_minus(hi) < T(0); ++i) {
-    if (i >= 2000 || !is_finite(hi)) return fail(errc::no_convergence, "farthest shot: no upper bound for k T");
+    if (i >= 2000 || !is_finite(hi))
+      return fail(errc::no_convergence, "farthest shot: no upper bound for k T");
     hi *= 2;
   }
   const result<T> s = bracketed_root(p_minus, lo, hi, p_minus(lo), p_minus(hi), max_iter,
@@ -111,9 +112,9 @@ template <Real T>
 
 // Flies one shot at (elevation, azimuth) and lands it on the plane.
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<farthest_shot<T>> land_shot(const M& model, const medium<T>& air, const aim_frame<T>& frame,
-                                                 const farthest_request<T>& req, const T& elevation,
-                                                 const solve_options<T>& o) {
+[[nodiscard]] result<farthest_shot<T>> land_shot(const M& model, const medium<T>& air,
+                                                 const aim_frame<T>& frame, const farthest_request<T>& req,
+                                                 const T& elevation, const solve_options<T>& o) {
   farthest_shot<T> out;
   out.elevation = elevation;
   out.azimuth = req.azimuth;
@@ -133,7 +134,8 @@ template <DragModel M, Real T = scalar_of<M>>
 /// at or below the launch, else the elevation whose apex just reaches the plane.
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<farthest_shot<T>> farthest_direct(const M& model, const medium<T>& air,
-                                                       const aim_frame<T>& frame, const farthest_request<T>& req,
+                                                       const aim_frame<T>& frame,
+                                                       const farthest_request<T>& req,
                                                        const solve_options<T>& o) {
   const T top = half_pi<T>() * (T(1) - T(64) * epsilon<T>());
   auto apex_excess = [&](const T& elev) -> T {

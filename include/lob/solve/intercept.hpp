@@ -56,7 +56,9 @@ template <DragModel M, Real T = scalar_of<M>>
   const auto flight = fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * up(air))}, o.flight);
   if (!flight) return unexpected<error>(flight.error());
   const result<state<T>> down = flight->landing(T((h0 < h1 ? h0 : h1) - T(1)));
-  if (!down) return fail(errc::invalid_argument, "no automatic horizon for this flight; give intercept_request::horizon");
+  if (!down)
+    return fail(errc::invalid_argument,
+                "no automatic horizon for this flight; give intercept_request::horizon");
   return T(2 * down->time);
 }
 
@@ -77,7 +79,8 @@ template <Real T, class G>
         const std::optional<T> v = g(x);
         return v ? *v : T(0);
       };
-      const result<T> r = bracketed_root(plain, prev_t, t, *prev_g, *gi, max_iter, "meeting time did not converge");
+      const result<T> r =
+          bracketed_root(plain, prev_t, t, *prev_g, *gi, max_iter, "meeting time did not converge");
       if (!r) return unexpected<error>(r.error());
       if (!first) first = *r;
       last = *r;
@@ -92,7 +95,8 @@ template <Real T, class G>
 /// receiver is at t; a meeting is a root of (that aim's time of flight - t).
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<intercept_solutions<T>> intercept_direct(const M& model, const medium<T>& air,
-                                                              const intercept_request<T>& req, const T& horizon,
+                                                              const intercept_request<T>& req,
+                                                              const T& horizon,
                                                               const intercept_options<T>& o) {
   const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.solve.reference);
   if (!frame) return unexpected<error>(frame.error());
@@ -100,7 +104,8 @@ template <DragModel M, Real T = scalar_of<M>>
   for (int b = 0; b < 2; ++b) {
     auto g = [&](const T& t) -> std::optional<T> {
       const vec3<T> where = req.target.position + req.target.velocity * t;
-      const result<aim_solutions<T>> a = aim(model, air, aim_request<T>{req.launch_point, where, req.speed}, o.solve);
+      const result<aim_solutions<T>> a =
+          aim(model, air, aim_request<T>{req.launch_point, where, req.speed}, o.solve);
       if (!a) return std::nullopt;
       const std::optional<aim_solution<T>>& s = b == 0 ? a->flat : a->lofted;
       if (!s) return std::nullopt;
@@ -111,12 +116,14 @@ template <DragModel M, Real T = scalar_of<M>>
     if (r->first && (!first || *r->first < *first)) first = r->first;
     if (r->second && (!last || *r->second > *last)) last = r->second;
   }
-  if (!first) return fail(errc::out_of_reach, "the body cannot meet the receiver within the horizon [s]", horizon);
+  if (!first)
+    return fail(errc::out_of_reach, "the body cannot meet the receiver within the horizon [s]", horizon);
   intercept_solutions<T> out;
   for (int k = 0; k < 2; ++k) {
     const T t = k == 0 ? *first : *last;
     const vec3<T> where = req.target.position + req.target.velocity * t;
-    const result<aim_solutions<T>> a = aim(model, air, aim_request<T>{req.launch_point, where, req.speed}, o.solve);
+    const result<aim_solutions<T>> a =
+        aim(model, air, aim_request<T>{req.launch_point, where, req.speed}, o.solve);
     if (!a) return unexpected<error>(a.error());
     // The branch whose flight time matches t.
     const aim_solution<T>* best = nullptr;
@@ -145,7 +152,8 @@ template <DragModel M, Real T = scalar_of<M>>
                                                        const intercept_options<T>& o = {}) {
   if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
-  if (!is_finite(req.target.velocity)) return fail(errc::invalid_argument, "receiver velocity must be finite");
+  if (!is_finite(req.target.velocity))
+    return fail(errc::invalid_argument, "receiver velocity must be finite");
   if (const status ok = detail::check_points(req.launch_point, req.target.position, air); !ok)
     return unexpected<error>(ok.error());
   if (!is_finite(req.horizon) || req.horizon < T(0))
@@ -182,7 +190,8 @@ template <DragModel M, Real T = scalar_of<M>>
     if (!r) return unexpected<error>(r.error());
     const std::optional<T> first = early ? early : r->first;
     const std::optional<T> last = r->second ? r->second : early;
-    if (!first) return fail(errc::out_of_reach, "the body cannot meet the receiver within the horizon [s]", horizon);
+    if (!first)
+      return fail(errc::out_of_reach, "the body cannot meet the receiver within the horizon [s]", horizon);
     intercept_solutions<T> out;
     const result<aim_solution<T>> a =
         detail::complete(model, air, *frame, req.launch_point, f.velocity(*first), *first, o.solve);

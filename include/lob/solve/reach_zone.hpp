@@ -67,15 +67,18 @@ template <Real T>
 /// Errors: `invalid_argument` for bad input or fewer than 2 points; `out_of_reach` if
 /// the floor is above every reachable point.
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<std::size_t> reach_boundary(const M& model, const medium<T>& air, const reach_request<T>& req,
-                                                 std::span<boundary_point<T>> out, const solve_options<T>& o = {}) {
+[[nodiscard]] result<std::size_t> reach_boundary(const M& model, const medium<T>& air,
+                                                 const reach_request<T>& req,
+                                                 std::span<boundary_point<T>> out,
+                                                 const solve_options<T>& o = {}) {
   if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_reach(req); !ok) return unexpected<error>(ok.error());
-  if (out.size() < 2) return fail(errc::invalid_argument, "the boundary needs at least 2 points, got", out.size());
+  if (out.size() < 2)
+    return fail(errc::invalid_argument, "the boundary needs at least 2 points, got", out.size());
   const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
   if (!frame) return unexpected<error>(frame.error());
-  const result<farthest_shot<T>> far =
-      farthest_elevation(model, air, farthest_request<T>{req.launch_point, req.speed, req.azimuth, req.floor_height}, o);
+  const result<farthest_shot<T>> far = farthest_elevation(
+      model, air, farthest_request<T>{req.launch_point, req.speed, req.azimuth, req.floor_height}, o);
   if (!far) return unexpected<error>(far.error());
   const auto vertical = fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * frame->up)}, o.flight);
   if (!vertical) return unexpected<error>(vertical.error());
@@ -89,8 +92,9 @@ template <DragModel M, Real T = scalar_of<M>>
   for (std::size_t i = 1; i + 1 < n; ++i) {
     const T d = far->range * T(static_cast<long long>(i)) / T(static_cast<long long>(n - 1));
     auto neg_height = [&](const T& e) {
-      const auto f = fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * frame->direction(e, req.azimuth))},
-                         o.flight);
+      const auto f =
+          fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * frame->direction(e, req.azimuth))},
+              o.flight);
       if (!f) return T(low * (T(4) + e));
       const result<state<T>> s = f->at_distance(d);
       return s ? T(-height(s->position, air)) : T(low * (T(4) + e));
@@ -110,16 +114,18 @@ template <DragModel M, Real T = scalar_of<M>>
 /// points written. Errors as for `farthest_elevation()`, and `invalid_argument` for an
 /// empty span.
 template <DragModel M, Real T = scalar_of<M>>
-[[nodiscard]] result<std::size_t> reach_footprint(const M& model, const medium<T>& air, const reach_request<T>& req,
-                                                  std::span<footprint_point<T>> out, const solve_options<T>& o = {}) {
+[[nodiscard]] result<std::size_t> reach_footprint(const M& model, const medium<T>& air,
+                                                  const reach_request<T>& req,
+                                                  std::span<footprint_point<T>> out,
+                                                  const solve_options<T>& o = {}) {
   if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_reach(req); !ok) return unexpected<error>(ok.error());
   if (out.empty()) return fail(errc::invalid_argument, "the footprint needs at least 1 point");
   const std::size_t n = out.size();
   for (std::size_t i = 0; i < n; ++i) {
     const T az = T(2) * detail::pi<T>() * T(static_cast<long long>(i)) / T(static_cast<long long>(n));
-    const result<farthest_shot<T>> f =
-        farthest_elevation(model, air, farthest_request<T>{req.launch_point, req.speed, az, req.floor_height}, o);
+    const result<farthest_shot<T>> f = farthest_elevation(
+        model, air, farthest_request<T>{req.launch_point, req.speed, az, req.floor_height}, o);
     if (!f) return unexpected<error>(f.error());
     out[i] = footprint_point<T>{az, f->elevation, f->landing.position, f->range};
   }
