@@ -136,9 +136,15 @@ template <Real T>
           T(1)};
 }
 
-/// The first index into sinh_small_coefficients that a built-in type needs: its series
+/// Whether the node loops' series (sinh_small, expm1_unit) are fixed polynomials for T:
+/// built-in types of at most 64 digits (float, double, x87 long double). Wider types (a
+/// double-double long double, multiprecision) sum or call instead.
+template <class T>
+inline constexpr bool fixed_series = std::is_floating_point_v<T> && std::numeric_limits<T>::digits <= 64;
+
+/// The first index into sinh_small_coefficients that a fixed_series type needs: its series
 /// stops at x^(2K+1) with K = 10 - first, where the first omitted term x^(2K+2)/(2K+3)! is
-/// below half an ulp at |x| = 1/2 (float K = 4: 3e-11; double K = 7: 4.3e-20; long
+/// below half an ulp at |x| = 1/2 (float K = 4: 2.4e-11; double K = 7: 4.3e-20; long
 /// double K = 8: 3.1e-23).
 template <Real T>
 inline constexpr std::size_t sinh_small_first = std::numeric_limits<T>::digits <= 24   ? 6
@@ -146,12 +152,12 @@ inline constexpr std::size_t sinh_small_first = std::numeric_limits<T>::digits <
                                                                                        : 2;
 
 /// sinh(x) for |x| < 1/2 by its Taylor series (relative accuracy near 0 without a call):
-/// for built-in types a fixed Horner polynomial (see sinh_small_first), for wider types
+/// for fixed_series types a fixed Horner polynomial (see sinh_small_first), for others
 /// the series summed until its terms fall below epsilon.
 template <Real T>
 [[nodiscard]] T sinh_small(const T& x) {
   const T x2 = x * x;
-  if constexpr (std::is_floating_point_v<T>) {
+  if constexpr (fixed_series<T>) {
     constexpr std::array<T, 11> inv = sinh_small_coefficients<T>();
     constexpr std::size_t first = sinh_small_first<T>;
     T p = inv[first];
@@ -171,11 +177,11 @@ template <Real T>
   }
 }
 
-/// sinh_small of each element of an Eigen array (built-in types: Horner's rule on whole
-/// arrays, so that it vectorises).
+/// sinh_small of each element of an Eigen array (fixed_series types: Horner's rule on
+/// whole arrays, so that it vectorises).
 template <Real T, int M>
 [[nodiscard]] Eigen::Array<T, M, 1> sinh_small(const Eigen::Array<T, M, 1>& x) {
-  if constexpr (std::is_floating_point_v<T>) {
+  if constexpr (fixed_series<T>) {
     constexpr std::array<T, 11> inv = sinh_small_coefficients<T>();
     const Eigen::Array<T, M, 1> x2 = x.square();
     constexpr std::size_t first = sinh_small_first<T>;
@@ -187,12 +193,12 @@ template <Real T, int M>
   }
 }
 
-/// e^x - 1 for each x in [0, 1] of an Eigen array of a built-in type, by the Taylor series
+/// e^x - 1 for each x in [0, 1] of an Eigen array of a fixed_series type, by the Taylor series
 /// x sum x^j/(j+1)! to the term x^m/m! after which the rest is below half an ulp at x = 1
 /// (float m = 10, double 18, long double 20). Relative-accurate near 0 like expm1 and,
 /// being Horner's rule on whole arrays, vectorised where calls to expm1 would not be.
 template <Real T, int M>
-requires std::is_floating_point_v<T>
+requires fixed_series<T>
 [[nodiscard]] Eigen::Array<T, M, 1> expm1_unit(const Eigen::Array<T, M, 1>& x) {
   constexpr int digits = std::numeric_limits<T>::digits;
   constexpr std::size_t m = digits <= 24 ? 10 : digits <= 53 ? 18 : 20;
@@ -494,11 +500,11 @@ class hodograph_path {
     return p;
   }
 
-  // e^z - 1 for each node offset z >= 0: the series where every z <= 1 in a built-in type,
-  // else one expm1 (or exp) each.
+  // e^z - 1 for each node offset z >= 0: the series where every z <= 2 in a fixed_series
+  // type, else one expm1 (or exp) each.
   template <int M>
   [[nodiscard]] static Eigen::Array<T, M, 1> expm1_all(const Eigen::Array<T, M, 1>& z) {
-    if constexpr (std::is_floating_point_v<T>) {
+    if constexpr (fixed_series<T>) {
       const T largest = z.maxCoeff();
       if (largest <= T(1)) return expm1_unit(z);
       if (largest <= T(2)) {
