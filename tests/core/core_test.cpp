@@ -1,5 +1,6 @@
 // Core types: result/error, the Real concept, state helpers, units.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -46,7 +47,7 @@ TEST_CASE("a result holds a value or an error") {
   CHECK(fine.has_value());
 }
 
-TEST_CASE_TEMPLATE("degrees convert to radians with every digit", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("degrees convert to radians with every digit", T, float, double, long double LOB_AND_WIDE(mp50)) {
   using std::abs;
   const T half_turn = lob::deg(T(180));
   CHECK(abs(T(half_turn - boost::math::constants::pi<T>())) <= 2 * std::numeric_limits<T>::epsilon() * 4);

@@ -2,6 +2,7 @@
 // checked against a different formulation (dense sampling of the explicit path, and the
 // 50-digit explicit solution), and the apex height against the apex state.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -36,8 +37,8 @@ T rel(const T& a, const T& b) {
 
 }  // namespace
 
-TEST_CASE_TEMPLATE("in still air the distance is reached at -log1p(-k d/u)/k", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("in still air the distance is reached at -log1p(-k d/u)/k", T, float, double, long double
+                   LOB_AND_WIDE(mp50)) {
   const T eps = std::numeric_limits<T>::epsilon();
   // Reference: the same time from the explicit expression -log(1 - k d/u)/k in 100 digits
   // (a different formulation: a plain log, whose cancellation 100 digits absorb).
@@ -123,8 +124,8 @@ TEST_CASE("with a tailwind or crosswind the distance grows and is reached once")
   CHECK(worst <= 1e-13);
 }
 
-TEST_CASE_TEMPLATE("the apex height equals the height of the apex state", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("the apex height equals the height of the apex state", T, float, double, long double
+                   LOB_AND_WIDE(mp50)) {
   const T eps = std::numeric_limits<T>::epsilon();
   for (const char* kstr : {"0", "1e-9", "0.05", "3", "200"}) {
     const T k = T(mp50(kstr));

@@ -1,6 +1,7 @@
 // linear_flight against published results, each source named beside its check, and
 // the error codes of bad input.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/math/constants/constants.hpp>
 #include <boost/math/special_functions/lambert_w.hpp>
@@ -33,7 +34,7 @@ bool names(const lob::error& e, const char* text) { return std::strstr(e.message
 }  // namespace
 
 TEST_CASE_TEMPLATE("vacuum range, flight time and apex height are the textbook formulas", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   // Vacuum on level ground (any mechanics textbook): range v^2 sin(2 theta)/g, flight
   // time 2 v sin(theta)/g, apex height v^2 sin^2(theta)/(2 g); 45 degrees goes farthest.
   using std::sin;
@@ -124,7 +125,7 @@ TEST_CASE("with drag the apex comes earlier and lower, the descent takes longer 
   CHECK(lob::path_angle_below_horizon(*drag.landing(), drag.air()) > lob::deg(50.0));  // steeper fall
 }
 
-TEST_CASE_TEMPLATE("a vertical shot lands on its launch point", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("a vertical shot lands on its launch point", T, float, double, long double LOB_AND_WIDE(mp50)) {
   const T eps = std::numeric_limits<T>::epsilon();
   for (const char* k : {"0", "1e-9", "0.2", "40"}) {
     const lob::shot<T> up{lob::vec3<T>::Zero(), lob::vec3<T>(T(0), T(0), T(20))};

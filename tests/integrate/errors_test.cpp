@@ -1,6 +1,7 @@
 // Bad input to the drag models and to integrated flight: error values with clear messages,
 // never NaN, UB or an endless loop; and the fixed-step modes' reproducibility.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <cmath>
 #include <cstring>
@@ -30,7 +31,7 @@ lob::shot<double> ball() {
 }  // namespace
 
 TEST_CASE_TEMPLATE("drag model factories compute their coefficients and reject bad input", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   const T g = lob::standard_gravity<T>();
   const auto q = lob::quadratic_drag<T>::from_terminal_speed(T(33), g);
   REQUIRE(q);

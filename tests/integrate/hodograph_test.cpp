@@ -4,6 +4,7 @@
 #include "lob/integrate/hodograph.hpp"
 
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/math/constants/constants.hpp>
 #include <boost/multiprecision/cpp_bin_float.hpp>
@@ -178,8 +179,8 @@ TEST_CASE("the reference table is there and covers the intended ranges") {
   CHECK(below);
 }
 
-TEST_CASE_TEMPLATE("apex, crossings and landing match the mpmath reference", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("apex, crossings and landing match the mpmath reference", T, float, double, long double
+                   LOB_AND_WIDE(mp50)) {
   const std::vector<reference_row> rows = reference();
   REQUIRE(!rows.empty());
   double worst[6] = {0, 0, 0,
@@ -247,7 +248,7 @@ double rel(const T& value, const wider<T>& ref) {
 // up w^2 = (vt^2 + v0^2) exp(-2 g y/vt^2) - vt^2 and on the way down from rest
 // v^2 = vt^2 (1 - exp(-2 g d/vt^2)) (both from v dv/dy = -(g +- c v^2), same source).
 TEST_CASE_TEMPLATE("an exactly vertical shot follows the closed forms of vertical flight", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   using R = wider<T>;
   using std::atan;
   using std::exp;
@@ -291,7 +292,7 @@ TEST_CASE_TEMPLATE("an exactly vertical shot follows the closed forms of vertica
 }
 
 TEST_CASE_TEMPLATE("a vertical downward throw follows the closed form of the fall", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   using R = wider<T>;
   using std::atanh;
   using std::exp;
@@ -321,8 +322,8 @@ TEST_CASE_TEMPLATE("a vertical downward throw follows the closed form of the fal
   }
 }
 
-TEST_CASE_TEMPLATE("a near-vertical shot approaches the vertical closed forms", T, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("a near-vertical shot approaches the vertical closed forms", T, double, long double
+                   LOB_AND_WIDE(mp50)) {
   using std::abs;
   using std::sqrt;
   const T g = lob::standard_gravity<T>();
@@ -364,7 +365,7 @@ TEST_CASE_TEMPLATE("a near-vertical shot approaches the vertical closed forms", 
   }
 }
 
-TEST_CASE_TEMPLATE("a vanishing drag gives the vacuum flight", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("a vanishing drag gives the vacuum flight", T, float, double, long double LOB_AND_WIDE(mp50)) {
   using std::abs;
   using std::cos;
   using std::sin;
@@ -425,7 +426,7 @@ TEST_CASE("the farthest elevation on level ground is below 45 degrees under drag
 }
 
 TEST_CASE_TEMPLATE("the rising crossing comes before the apex and the falling one after", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   const T g = lob::standard_gravity<T>();
   const T c = T(1) / T(100), v = T(35), th = lob::deg(T(50));
   const lob::result<hodograph_point<T>> a = hodograph_apex(c, g, v, th);
@@ -455,7 +456,7 @@ TEST_CASE_TEMPLATE("the rising crossing comes before the apex and the falling on
 }
 
 TEST_CASE_TEMPLATE("a level or downward launch has its apex at the launch point", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   const T g = lob::standard_gravity<T>();
   const T c = T(1) / T(50), v = T(20);
   for (const T& th : {T(0), lob::deg(T(-30)), lob::deg(T(-80))}) {
@@ -476,8 +477,8 @@ TEST_CASE_TEMPLATE("a level or downward launch has its apex at the launch point"
   }
 }
 
-TEST_CASE_TEMPLATE("bad inputs and unreachable heights are error values", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("bad inputs and unreachable heights are error values", T, float, double, long double
+                   LOB_AND_WIDE(mp50)) {
   const T g = lob::standard_gravity<T>();
   const T c = T(1) / T(100), v = T(30), th = lob::deg(T(45));
   const T nan = std::numeric_limits<T>::quiet_NaN();
@@ -548,7 +549,7 @@ std::optional<landing_row<T>> landing_of(const reference_row& r) {
 // sensitive to it (dt = dx / u, dy = tan(phi) dx), so each bound carries that condition
 // factor on top of the method's tolerance.
 TEST_CASE_TEMPLATE("the points at a distance and at a time match the mpmath reference", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   using lob::detail::hodograph_at_distance;
   const std::vector<reference_row> rows = reference();
   REQUIRE(!rows.empty());
@@ -597,7 +598,7 @@ TEST_CASE_TEMPLATE("the points at a distance and at a time match the mpmath refe
 // converge (the aim then falls back to a bracketing search): that must be an error value,
 // and rare.
 TEST_CASE_TEMPLATE("aiming at a reference point finds a launch elevation through it", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   using lob::detail::hodograph_aim;
   using lob::detail::hodograph_at_distance;
   const std::vector<reference_row> rows = reference();
@@ -666,7 +667,7 @@ TEST_CASE_TEMPLATE("the hodograph aim rejects bad inputs", T, float, double, lon
   CHECK(hodograph_aim(c, g, v, T(500), T(0), T(0.5)).error().code() == lob::errc::no_convergence);
 }
 
-TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("the distance search reports what it cannot reach", T, float, double, long double LOB_AND_WIDE(mp50)) {
   using lob::detail::hodograph_at_distance;
   const T g = lob::standard_gravity<T>();
   const T c = T(1) / T(10), v = T(30), th = lob::deg(T(45));

@@ -3,6 +3,7 @@
 // energy, ascent and descent, the best elevation, wind drift, frames, queries agreeing
 // with one another, and a user-defined model.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <array>
 #include <cmath>
@@ -30,7 +31,7 @@ T tolerance_for() {
 // top after (v_t / g) atan(v0 / v_t) at height (v_t^2 / 2g) ln(1 + v0^2 / v_t^2); dropped
 // from rest it falls at v_t tanh(g t / v_t).
 TEST_CASE_TEMPLATE("a vertical throw under quadratic drag matches the exact rise and fall", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   using std::atan;
   using std::log;
   using std::tanh;

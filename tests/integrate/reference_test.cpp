@@ -3,6 +3,7 @@
 // checked against a 50-digit solve; scripts/integrate_reference.py), and the observed
 // convergence orders of the steppers.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -100,12 +101,14 @@ TEST_CASE("the adaptive path in float meets tolerance 1e-6") {
   check_tolerance<float>(6, rows);
 }
 
+#if LOB_TEST_WIDE
 TEST_CASE("the adaptive path at 50 digits meets tolerances down to 1e-18") {
   const auto rows = lob_test::load_reference<mp50>();
   REQUIRE(rows.size() == 18);
   check_tolerance<mp50>(13, rows);
   check_tolerance<mp50>(18, rows);
 }
+#endif
 
 namespace {
 
@@ -165,7 +168,7 @@ TEST_CASE_TEMPLATE("classical RK4 converges with order 4", T, double, long doubl
   CHECK(checked == 3);
 }
 
-TEST_CASE_TEMPLATE("the Dormand-Prince pair converges with order 5", T, long double, mp50) {
+TEST_CASE_TEMPLATE("the Dormand-Prince pair converges with order 5", T, long double LOB_AND_WIDE(mp50)) {
   const auto rows = lob_test::load_reference<T>();
   const auto dp5 = [](const auto& accel, const auto& y, const auto& f, const T& h) {
     lob::detail::phase<T> y1;

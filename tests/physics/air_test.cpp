@@ -1,6 +1,7 @@
 // Air: the standard atmosphere, altitude conversions, Sutherland viscosity, vapour
 // pressure and humid-air density.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -45,7 +46,7 @@ T tolerance(double at_least) {
 // the layers by geopotential altitude (from memory): H [m'], T [K], P [Pa] as printed
 // there to 7 significant digits.
 TEST_CASE_TEMPLATE("the standard atmosphere reproduces the layer bases of the 1976 standard", T, float,
-                   double, long double, mp50) {
+                   double, long double LOB_AND_WIDE(mp50)) {
   struct row {
     int h;
     const char* temperature;
@@ -67,7 +68,7 @@ TEST_CASE_TEMPLATE("the standard atmosphere reproduces the layer bases of the 19
 
 // Sea level, U.S. Standard Atmosphere 1976 Table I and ISO 2533: 288.15 K, 101325 Pa,
 // 1.2250 kg/m^3, 340.294 m/s, 1.7894e-5 Pa s (from memory).
-TEST_CASE_TEMPLATE("sea level has the standard's values", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("sea level has the standard's values", T, float, double, long double LOB_AND_WIDE(mp50)) {
   const lob::result<lob::atmosphere_state<T>> s = lob::standard_atmosphere(T(0));
   REQUIRE(s.has_value());
   CHECK(s->temperature == T(28815) / T(100));
@@ -81,8 +82,8 @@ TEST_CASE_TEMPLATE("sea level has the standard's values", T, float, double, long
 // T [K] to 3 decimals, P [Pa], rho [kg/m^3] and mu [Pa s] to the 5 significant digits the
 // table prints, a [m/s] to 5 significant digits. The tolerances are half a unit in the last
 // digit.
-TEST_CASE_TEMPLATE("geometric altitudes match Table I of the 1976 standard", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("geometric altitudes match Table I of the 1976 standard", T, float, double, long double
+                   LOB_AND_WIDE(mp50)) {
   struct row {
     int z;
     double temperature, pressure, density, sound, viscosity;
@@ -113,7 +114,7 @@ TEST_CASE_TEMPLATE("geometric altitudes match Table I of the 1976 standard", T, 
 
 // The tropopause: 11 km geopotential, 216.65 K (1976 standard, Table 4), is 11019 m
 // geometric (Table I lists 11019.1 m for 11000 m'; from memory).
-TEST_CASE_TEMPLATE("geopotential and geometric altitude convert both ways", T, double, long double, mp50) {
+TEST_CASE_TEMPLATE("geopotential and geometric altitude convert both ways", T, double, long double LOB_AND_WIDE(mp50)) {
   const lob::result<T> z = lob::geometric_altitude(T(11000));
   REQUIRE(z.has_value());
   CHECK(rel(*z, num<T>("11019.07")) <= T(1e-6));
@@ -158,7 +159,7 @@ std::vector<reference_row> read_reference() {
 // equation numerically with mpmath at 40 digits (a different formulation from the layer
 // formulas), for the standard day and hot and cold days.
 TEST_CASE_TEMPLATE("the layer formulas agree with a numerically integrated hydrostatic atmosphere", T, float,
-                   double, long double, mp50) {
+                   double, long double LOB_AND_WIDE(mp50)) {
   const std::vector<reference_row> rows = read_reference();
   REQUIRE(rows.size() == 72);
   T worst = T(0);
@@ -192,7 +193,7 @@ TEST_CASE("a hot day is less dense than a standard day at the same altitude") {
   CHECK(hot->pressure > standard->pressure);
 }
 
-TEST_CASE_TEMPLATE("altitudes and offsets outside the model's range are errors", T, float, double, mp50) {
+TEST_CASE_TEMPLATE("altitudes and offsets outside the model's range are errors", T, float, double LOB_AND_WIDE(mp50)) {
   const lob::result<lob::atmosphere_state<T>> high = lob::standard_atmosphere(T(90000));
   REQUIRE_FALSE(high);
   CHECK(high.error() == lob::errc::invalid_argument);
@@ -206,7 +207,7 @@ TEST_CASE_TEMPLATE("altitudes and offsets outside the model's range are errors",
 
 // Sutherland's law with the 1976 standard's constants: 1.7894e-5 Pa s at 288.15 K and
 // 1.4216e-5 Pa s at 216.65 K (Table I; from memory).
-TEST_CASE_TEMPLATE("Sutherland's law gives the standard's viscosities", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("Sutherland's law gives the standard's viscosities", T, float, double, long double LOB_AND_WIDE(mp50)) {
   const lob::result<T> sea = lob::sutherland_viscosity(T(28815) / T(100));
   const lob::result<T> tropopause = lob::sutherland_viscosity(T(21665) / T(100));
   REQUIRE(sea.has_value());
@@ -241,7 +242,7 @@ TEST_CASE_TEMPLATE("Buck's vapour pressure is within its stated 0.2% of IAPWS va
 }
 
 TEST_CASE_TEMPLATE("humid air is lighter than dry air and humidity must be a fraction", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   const T t = T(29315) / T(100);
   const T p = T(101325);
   const lob::result<T> dry = lob::humid_air_density(t, p, T(0));

@@ -1,5 +1,6 @@
 // Calibration: fitting drag parameters (and launch speed and elevation) to measured flights.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -266,7 +267,7 @@ TEST_CASE("too few samples, bad inputs and a non-converged fit are errors") {
   CHECK(unknowable.error() == lob::errc::no_convergence);
 }
 
-TEST_CASE_TEMPLATE("calibration works in every scalar type", T, float, long double, mp50) {
+TEST_CASE_TEMPLATE("calibration works in every scalar type", T, float, long double LOB_AND_WIDE(mp50)) {
   // Exact samples of a linear-drag flight; the fit stops at Eigen's default tolerances
   // (sqrt(eps) relative in the unknowns, eps of the solver's scalar: long double for the
   // 50-digit type), so that is what is asked of it.

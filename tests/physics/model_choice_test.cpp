@@ -1,6 +1,7 @@
 // From a body and the air to a drag model: factories, the speed-dependent model, and the
 // recommendation of a model for a speed range.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -23,8 +24,8 @@ lob::sphere<double> solid(double density, double diameter) {
 }
 }  // namespace
 
-TEST_CASE_TEMPLATE("the factories build each model from the body and the air", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("the factories build each model from the body and the air", T, float, double, long double
+                   LOB_AND_WIDE(mp50)) {
   const lob::air_properties<T> air{T(12) / T(10), T(18) / T(1000000), T(340), T(293), T(101325)};
   const lob::sphere<T> ball{T(57) / T(1000), T(67) / T(1000)};
   using std::abs;

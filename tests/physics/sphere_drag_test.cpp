@@ -1,5 +1,6 @@
 // Sphere drag correlations, Reynolds and Mach numbers, bodies, Stokes drag.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -63,7 +64,7 @@ TEST_CASE("every correlation stays within its stated accuracy of the standard dr
 // Brown & Lawler 2003; Morrison 2013): lob's rewriting (Cd Re, x^0.06 / (1 + x^8)) keeps
 // the value for every scalar type.
 TEST_CASE_TEMPLATE("the rewritten forms keep the published formulas to a few ulps", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   using std::pow;
   const auto published = [](const mp50& re, lob::sphere_correlation c) -> mp50 {
     const mp50 sn = 24 / re * (1 + mp50("0.15") * pow(re, mp50("0.687")));
@@ -97,8 +98,8 @@ TEST_CASE_TEMPLATE("the rewritten forms keep the published formulas to a few ulp
   }
 }
 
-TEST_CASE_TEMPLATE("every correlation tends to Stokes' law as Re goes to zero", T, float, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("every correlation tends to Stokes' law as Re goes to zero", T, float, double, long double
+                   LOB_AND_WIDE(mp50)) {
   for (const lob::sphere_correlation c : all_correlations) {
     const lob::result<T> cd = lob::sphere_drag_coefficient(T(1) / T(1000000), c);
     REQUIRE(cd.has_value());
@@ -136,7 +137,7 @@ TEST_CASE("Morrison's correlation shows the drag crisis") {
   CHECK(after > 0.05);
 }
 
-TEST_CASE_TEMPLATE("Reynolds numbers outside a correlation's range are errors", T, float, double, mp50) {
+TEST_CASE_TEMPLATE("Reynolds numbers outside a correlation's range are errors", T, float, double LOB_AND_WIDE(mp50)) {
   const lob::result<T> high =
       lob::sphere_drag_coefficient(T(1000), lob::sphere_correlation::schiller_naumann_1933);
   REQUIRE_FALSE(high);
@@ -149,7 +150,7 @@ TEST_CASE_TEMPLATE("Reynolds numbers outside a correlation's range are errors", 
   CHECK_FALSE(lob::sphere_drag_coefficient(std::numeric_limits<T>::quiet_NaN()));
 }
 
-TEST_CASE_TEMPLATE("bodies with non-positive mass or size are errors", T, float, double, mp50) {
+TEST_CASE_TEMPLATE("bodies with non-positive mass or size are errors", T, float, double LOB_AND_WIDE(mp50)) {
   CHECK(lob::sphere<T>{T(1), T(1)}.check().has_value());
   const lob::status no_mass = lob::sphere<T>{T(0), T(1)}.check();
   REQUIRE_FALSE(no_mass);
@@ -165,8 +166,8 @@ TEST_CASE_TEMPLATE("bodies with non-positive mass or size are errors", T, float,
   CHECK_FALSE(lob::stokes_rate(lob::sphere<T>{T(0), T(1)}, air));
 }
 
-TEST_CASE_TEMPLATE("Reynolds and Mach numbers of a flight state use the air speed", T, double, long double,
-                   mp50) {
+TEST_CASE_TEMPLATE("Reynolds and Mach numbers of a flight state use the air speed", T, double, long double
+                   LOB_AND_WIDE(mp50)) {
   const lob::air_properties<T> air{T(12) / T(10), T(18) / T(1000000), T(340), T(293), T(101325)};
   const lob::sphere<T> ball{T(1) / T(20), T(7) / T(100)};
   lob::state<T> s;
@@ -195,7 +196,7 @@ TEST_CASE_TEMPLATE("Reynolds and Mach numbers of a flight state use the air spee
 // Stokes' law, F = 3 pi mu d v (Stokes 1851): a small sphere settles at
 // v = (m - rho V) g / (3 pi mu d), which for a sphere of density rho_p is the textbook
 // d^2 (rho_p - rho) g / (18 mu).
-TEST_CASE_TEMPLATE("a small sphere settles at Stokes' speed", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("a small sphere settles at Stokes' speed", T, float, double, long double LOB_AND_WIDE(mp50)) {
   const lob::air_properties<T> air{T(12) / T(10), T(18) / T(1000000), T(340), T(293), T(101325)};
   // A 20 micrometre water droplet: Re about 0.003.
   const T d = T(2) / T(100000);

@@ -1,5 +1,6 @@
 // Terminal speed: consistent with Cd(Re), against measured falling water drops.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -96,7 +97,7 @@ TEST_CASE("flattened rain drops fall slower than the rigid-sphere prediction") {
 // returned speed in 50 digits, and the speed against a bisection in 50 digits on the speed
 // itself (a different unknown from lob's Re).
 TEST_CASE_TEMPLATE("the terminal speed solves the force balance to the precision of T", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   const lob::air_properties<T> air{T(1225) / T(1000), T(17894) / T(1000000000), T(340), T(288), T(101325)};
   const double masses[] = {2e-6, 0.0027, 0.057, 0.45};
   const double diameters[] = {1e-3, 0.04, 0.067, 0.22};

@@ -2,6 +2,7 @@
 // flown forward with lob::fly() and its miss measured; the vacuum cases are checked
 // against the textbook formulas (named beside each check).
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -54,7 +55,7 @@ T miss_of(const M& model, const lob::medium<T>& air, const std::type_identity_t<
 }  // namespace
 
 TEST_CASE_TEMPLATE("vacuum aim matches the textbook elevation formula above, below and level", T, float,
-                   double, long double, mp50) {
+                   double, long double LOB_AND_WIDE(mp50)) {
   using std::atan;
   using std::sqrt;
   using std::abs;
@@ -313,7 +314,7 @@ TEST_CASE("speed for an elevation hits under drag and wind, and fails below the 
   CHECK(std::strstr(below.error().message(), "line of sight") != nullptr);
 }
 
-TEST_CASE_TEMPLATE("least speed matches the vacuum formula", T, float, double, long double, mp50) {
+TEST_CASE_TEMPLATE("least speed matches the vacuum formula", T, float, double, long double LOB_AND_WIDE(mp50)) {
   using std::abs;
   using std::sqrt;
   const T eps = std::numeric_limits<T>::epsilon();
@@ -473,7 +474,8 @@ void check_random_aims(const M& model, int count, std::uint64_t seed, bool wind,
 
 }  // namespace
 
-TEST_CASE("every quadratic-drag aim flown forward passes within 1e-9 m of its target") {
+TEST_CASE("every quadratic-drag aim flown forward passes within 1e-9 m of its target" *
+          doctest::test_suite("long")) {
   // Flights at relative tolerance 1e-11: at the default 1e-9 the integrated path itself
   // jumps by up to ~1e-8 m between neighbouring elevations (its step sequence changes),
   // so no elevation can be polished below that in about 1 case in 10^4.
@@ -494,11 +496,13 @@ TEST_CASE("quadratic-drag aims at longer range pass within 1e-9 m of their targe
   }
 }
 
-TEST_CASE("every linear-plus-quadratic-drag aim in wind flown forward passes within 1e-9 m of its target") {
+TEST_CASE("every linear-plus-quadratic-drag aim in wind flown forward passes within 1e-9 m of its target" *
+          doctest::test_suite("long")) {
   // 2000 here (not 10^4): each crosswind aim costs some ten direct aims.
   check_random_aims(lob::linear_quadratic_drag<double>{0.05, 0.004}, 2000, 32, true, 1e-11);
 }
 
-TEST_CASE("every aim of a user drag model flown forward passes within 1e-9 m of its target") {
+TEST_CASE("every aim of a user drag model flown forward passes within 1e-9 m of its target" *
+          doctest::test_suite("long")) {
   check_random_aims(cubic_drag{}, 2000, 33, false);
 }

@@ -1,6 +1,7 @@
 // solve/farthest.hpp: the elevation of maximum range. Closed forms (vacuum, linear drag)
 // against published formulas and against direct maximisation of the range.
 #include <doctest/doctest.h>
+#include "wide_types.hpp"
 
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
@@ -21,7 +22,7 @@ lob::farthest_request<T> request(const T& speed, const T& launch_height, const T
 }  // namespace
 
 TEST_CASE_TEMPLATE("farthest elevation from a height in vacuum follows the shot-put formula", T, float,
-                   double, long double, mp50) {
+                   double, long double LOB_AND_WIDE(mp50)) {
   using std::abs;
   using std::asin;
   using std::sqrt;
@@ -94,7 +95,7 @@ TEST_CASE("the linear-drag closed form keeps its digits as drag vanishes") {
 }
 
 TEST_CASE_TEMPLATE("at alpha = 1 on level ground sin(theta*) = 1/(e - 1) and k T* = 1", T, float, double,
-                   long double, mp50) {
+                   long double LOB_AND_WIDE(mp50)) {
   // Derived here: with alpha = k v / g = 1 the envelope equation 1 - (1 - s) e^s = alpha^2
   // has the root s = k T* = 1, so sin(theta*) = alpha / (e^1 - 1).
   using std::abs;
