@@ -14,8 +14,10 @@
 // naive forms always start from the inputs.
 #include <benchmark/benchmark.h>
 
+#include <algorithm>
 #include <array>
 #include <cmath>
+#include <cstddef>
 #include <cstdint>
 #include <random>
 #include <string>
@@ -25,9 +27,10 @@
 #include <boost/math/tools/toms748_solve.hpp>
 #include <boost/multiprecision/cpp_bin_float.hpp>
 #include <boost/multiprecision/eigen.hpp>
-#include <boost/numeric/odeint.hpp>
 
 #include "lob/lob.hpp"
+#include "odeint_landing.hpp"
+#include "runner.hpp"
 
 namespace {
 
@@ -175,15 +178,22 @@ struct landing_out {
 
 // Linear drag: tau = 1 + x - q + W0(-(1 + x) e^(q - 1 - x)), x = k v/g, q = k^2 dh/g, t = tau/k.
 template <class T>
-landing_out<T> naive_linear_landing(const input& in) {
+T naive_linear_time(const input& in) {
   using std::exp;
-  using std::sqrt;
-  const T k = T(in.k), ux = T(in.ux), vz = T(in.vz), g = lob::standard_gravity<T>();
+  const T k = T(in.k), vz = T(in.vz), g = lob::standard_gravity<T>();
   const T dh = -T(in.z0);
   const T x = k * vz / g;
   const T q = k * k * dh / g;
   const T w = boost::math::lambert_w0(T(-(1 + x) * exp(T(q - 1 - x))));
-  const T t = (1 + x - q + w) / k;
+  return (1 + x - q + w) / k;
+}
+
+template <class T>
+landing_out<T> naive_linear_landing(const input& in) {
+  using std::exp;
+  using std::sqrt;
+  const T k = T(in.k), ux = T(in.ux), vz = T(in.vz), g = lob::standard_gravity<T>();
+  const T t = naive_linear_time<T>(in);
   const T e = exp(-k * t);
   const T vx = ux * e;
   const T vzt = (vz + g / k) * e - g / k;
@@ -193,13 +203,8 @@ landing_out<T> naive_linear_landing(const input& in) {
 template <class T>
 T naive_linear_range(const input& in) {
   using std::exp;
-  const T k = T(in.k), ux = T(in.ux), vz = T(in.vz), g = lob::standard_gravity<T>();
-  const T dh = -T(in.z0);
-  const T x = k * vz / g;
-  const T q = k * k * dh / g;
-  const T w = boost::math::lambert_w0(T(-(1 + x) * exp(T(q - 1 - x))));
-  const T t = (1 + x - q + w) / k;
-  return T(ux * (1 - exp(-k * t)) / k);
+  const T k = T(in.k), ux = T(in.ux);
+  return T(ux * (1 - exp(-k * naive_linear_time<T>(in))) / k);
 }
 
 // Apex: t = ln(1 + k v/g)/k, height z0 + v/k - (g/k^2) ln(1 + k v/g).
@@ -237,7 +242,6 @@ landing_out<T> naive_vacuum_landing(const input& in) {
 using ode_state = std::array<double, 4>;  // x, z, vx, vz
 
 landing_out<double> odeint_landing(const input& in) {
-  namespace odeint = boost::numeric::odeint;
   const double k = in.k, g = lob::standard_gravity<double>();
   const auto rhs = [k, g](const ode_state& s, ode_state& d, double) {
     d[0] = s[2];
@@ -245,48 +249,15 @@ landing_out<double> odeint_landing(const input& in) {
     d[2] = -k * s[2];
     d[3] = -g - k * s[3];
   };
-  auto stepper = odeint::make_dense_output(1e-12, 1e-12, odeint::runge_kutta_dopri5<ode_state>());
-  stepper.initialize(ode_state{0, in.z0, in.ux, in.vz}, 0.0, 1e-3);
-  for (int i = 0; i < 1000000; ++i) {
-    stepper.do_step(rhs);
-    if (stepper.current_state()[1] < 0 && stepper.current_state()[3] < 0) break;
-  }
-  ode_state s;
-  const auto z_at = [&](double t) {
-    stepper.calc_state(t, s);
-    return s[1];
-  };
-  std::uintmax_t iterations = 100;
-  const std::pair<double, double> r =
-      boost::math::tools::toms748_solve(z_at, stepper.previous_time(), stepper.current_time(),
-                                        boost::math::tools::eps_tolerance<double>(50), iterations);
-  const double t = (r.first + r.second) / 2;
-  stepper.calc_state(t, s);
-  return {t, std::abs(s[0]), std::sqrt(s[2] * s[2] + s[3] * s[3])};
+  const lob_bench::odeint_setup<double> setup{1e-12, 1e-3, 1000000, 1, boost::math::tools::eps_tolerance<double>(50),
+                                              100};
+  const auto l = lob_bench::odeint_landing(rhs, ode_state{0, in.z0, in.ux, in.vz}, setup,
+                                           [](const ode_state& s) { return s[1] < 0 && s[3] < 0; });
+  const ode_state& s = l.state;
+  return {l.time, std::abs(s[0]), std::sqrt(s[2] * s[2] + s[3] * s[3])};
 }
 
-// ---- Benchmark bodies ----
-
-template <class T, class F>
-void run(benchmark::State& state, const prepared<T>& p, F f) {
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const auto out = f(p.in[i]);
-    benchmark::DoNotOptimize(out);
-    i = (i + 1) % n_cases;
-  }
-}
-
-template <class T>
-void landing_errors(benchmark::State& state, const prepared<T>& p, landing_out<T> (*f)(const input&)) {
-  double worst = 0;
-  for (std::size_t i = 0; i < n_cases; ++i) {
-    const landing_out<T> o = f(p.in[i]);
-    worst =
-        std::max({worst, rel(double(o.time), p.ref[i].land_time), rel(double(o.speed), p.ref[i].land_speed)});
-  }
-  state.counters["max_rel_err"] = worst;
-}
+// ---- lob's queries ----
 
 template <class T>
 landing_out<T> lob_landing(const input& in) {
@@ -296,87 +267,8 @@ landing_out<T> lob_landing(const input& in) {
 }
 
 template <class T>
-void bm_landing_lob(benchmark::State& state, set which) {
-  const prepared<T>& p = data<T>(which);
-  run(state, p, [](const input& in) { return lob_landing<T>(in); });
-  landing_errors<T>(state, p, &lob_landing<T>);
-}
-
-template <class T>
-void bm_landing_prebuilt(benchmark::State& state, set which) {
-  const prepared<T>& p = data<T>(which);
-  std::vector<lob::linear_flight<T>> flights;
-  for (const input& in : p.in) flights.push_back(lob_flight<T>(in));
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const lob::result<lob::state<T>> s = flights[i].landing(T(0));
-    benchmark::DoNotOptimize(s);
-    i = (i + 1) % n_cases;
-  }
-  landing_errors<T>(state, p, &lob_landing<T>);
-}
-
-template <class T>
-void bm_landing_naive(benchmark::State& state, set which) {
-  const prepared<T>& p = data<T>(which);
-  const auto f = which == set::vacuum ? &naive_vacuum_landing<T> : &naive_linear_landing<T>;
-  run(state, p, f);
-  landing_errors<T>(state, p, f);
-}
-
-void bm_landing_odeint(benchmark::State& state, set which) {
-  const prepared<double>& p = data<double>(which);
-  run(state, p, &odeint_landing);
-  landing_errors<double>(state, p, &odeint_landing);
-}
-
-template <class T>
 T lob_range(const input& in) {
   return *lob_flight<T>(in).range(T(0));
-}
-
-template <class T>
-T naive_range(const input& in) {
-  if (in.k == 0) return naive_vacuum_landing<T>(in).range;
-  return naive_linear_range<T>(in);
-}
-
-template <class T>
-void range_errors(benchmark::State& state, const prepared<T>& p, T (*f)(const input&)) {
-  double worst = 0;
-  for (std::size_t i = 0; i < n_cases; ++i) worst = std::max(worst, rel(double(f(p.in[i])), p.ref[i].range));
-  state.counters["max_rel_err"] = worst;
-}
-
-template <class T>
-void bm_range(benchmark::State& state, set which, bool naive) {
-  const prepared<T>& p = data<T>(which);
-  const auto f = naive ? &naive_range<T> : &lob_range<T>;
-  run(state, p, f);
-  range_errors<T>(state, p, f);
-}
-
-template <class T>
-void bm_range_prebuilt(benchmark::State& state, set which) {
-  const prepared<T>& p = data<T>(which);
-  std::vector<lob::linear_flight<T>> flights;
-  for (const input& in : p.in) flights.push_back(lob_flight<T>(in));
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const lob::result<T> r = flights[i].range(T(0));
-    benchmark::DoNotOptimize(r);
-    i = (i + 1) % n_cases;
-  }
-  range_errors<T>(state, p, &lob_range<T>);
-}
-
-void bm_range_odeint(benchmark::State& state, set which) {
-  const prepared<double>& p = data<double>(which);
-  const auto f = [](const input& in) { return odeint_landing(in).range; };
-  run(state, p, f);
-  double worst = 0;
-  for (std::size_t i = 0; i < n_cases; ++i) worst = std::max(worst, rel(f(p.in[i]), p.ref[i].range));
-  state.counters["max_rel_err"] = worst;
 }
 
 template <class T>
@@ -384,6 +276,18 @@ std::array<T, 2> lob_apex(const input& in) {
   const lob::linear_flight<T> f = lob_flight<T>(in);
   const lob::state<T> s = *f.apex();
   return {s.time, s.position.z()};
+}
+
+template <class T>
+std::array<T, 4> lob_at(const lob::linear_flight<T>& f, const T& t) {
+  const lob::state<T> s = *f.at(t);
+  return {s.position.x(), s.position.z(), s.velocity.x(), s.velocity.z()};
+}
+
+template <class T>
+T naive_range(const input& in) {
+  if (in.k == 0) return naive_vacuum_landing<T>(in).range;
+  return naive_linear_range<T>(in);
 }
 
 template <class T>
@@ -397,74 +301,94 @@ std::array<T, 2> naive_apex(const input& in) {
 }
 
 template <class T>
-void bm_apex(benchmark::State& state, set which, bool naive) {
-  const prepared<T>& p = data<T>(which);
-  const auto f = naive ? &naive_apex<T> : &lob_apex<T>;
-  run(state, p, f);
-  double worst = 0;
-  for (std::size_t i = 0; i < n_cases; ++i) {
-    const std::array<T, 2> a = f(p.in[i]);
-    worst = std::max({worst, rel(double(a[0]), p.ref[i].apex_time), rel(double(a[1]), p.ref[i].apex_height)});
+std::array<T, 4> naive_at(const input& in) {
+  const T t = T(in.t_query);
+  if (in.k == 0) {
+    const T g = lob::standard_gravity<T>();
+    return {T(T(in.ux) * t), T(T(in.z0) + T(in.vz) * t - g * t * t / 2), T(in.ux), T(T(in.vz) - g * t)};
   }
-  state.counters["max_rel_err"] = worst;
+  return naive_linear_at<T>(in, t);
 }
 
-template <class T>
-void bm_apex_prebuilt(benchmark::State& state, set which) {
-  const prepared<T>& p = data<T>(which);
-  std::vector<lob::linear_flight<T>> flights;
-  for (const input& in : p.in) flights.push_back(lob_flight<T>(in));
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const lob::result<lob::state<T>> s = flights[i].apex();
-    benchmark::DoNotOptimize(s);
-    i = (i + 1) % n_cases;
-  }
-  double worst = 0;
-  for (std::size_t j = 0; j < n_cases; ++j) {
-    const std::array<T, 2> a = lob_apex<T>(p.in[j]);
-    worst = std::max({worst, rel(double(a[0]), p.ref[j].apex_time), rel(double(a[1]), p.ref[j].apex_height)});
-  }
-  state.counters["max_rel_err"] = worst;
-}
+// ---- Errors against the references, for lob_bench::time_and_measure ----
 
 template <class T>
-void bm_at(benchmark::State& state, set which, bool naive) {
-  const prepared<T>& p = data<T>(which);
-  std::vector<lob::linear_flight<T>> flights;
-  for (const input& in : p.in) flights.push_back(lob_flight<T>(in));
-  const auto query = [&](std::size_t i) -> std::array<T, 4> {
-    const input& in = p.in[i];
-    const T t = T(in.t_query);
-    if (naive) {
-      if (in.k == 0) {
-        const T g = lob::standard_gravity<T>();
-        return {T(T(in.ux) * t), T(T(in.z0) + T(in.vz) * t - g * t * t / 2), T(in.ux), T(T(in.vz) - g * t)};
-      }
-      return naive_linear_at<T>(in, t);
-    }
-    const lob::state<T> s = *flights[i].at(t);
-    return {s.position.x(), s.position.z(), s.velocity.x(), s.velocity.z()};
-  };
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const std::array<T, 4> s = query(i);
-    benchmark::DoNotOptimize(s);
-    i = (i + 1) % n_cases;
+struct landing_error {
+  const prepared<T>& p;
+  double operator()(std::size_t i, const landing_out<T>& o) const {
+    return std::max(rel(double(o.time), p.ref[i].land_time), rel(double(o.speed), p.ref[i].land_speed));
   }
-  double worst = 0;
-  for (std::size_t j = 0; j < n_cases; ++j) {
-    const std::array<T, 4> s = query(j);
-    const truth& r = p.ref[j];
-    // Relative errors of the position and velocity vectors (a component may underflow
-    // where e^-kt does, harmlessly; the vectors' errors are what matters).
+  double operator()(std::size_t i, const lob::result<lob::state<T>>& s) const {
+    return (*this)(i, landing_out<T>{s->time, T(0), lob::speed(*s)});
+  }
+};
+
+template <class T>
+struct range_error {
+  const prepared<T>& p;
+  double operator()(std::size_t i, const T& r) const { return rel(double(r), p.ref[i].range); }
+  double operator()(std::size_t i, const lob::result<T>& r) const { return (*this)(i, *r); }
+};
+
+template <class T>
+struct apex_error {
+  const prepared<T>& p;
+  double operator()(std::size_t i, const std::array<T, 2>& a) const {
+    return std::max(rel(double(a[0]), p.ref[i].apex_time), rel(double(a[1]), p.ref[i].apex_height));
+  }
+  double operator()(std::size_t i, const lob::result<lob::state<T>>& s) const {
+    return (*this)(i, std::array<T, 2>{s->time, s->position.z()});
+  }
+};
+
+// Relative errors of the position and velocity vectors (a component may underflow where
+// e^-kt does, harmlessly; the vectors' errors are what matters).
+template <class T>
+struct at_error {
+  const prepared<T>& p;
+  double operator()(std::size_t i, const std::array<T, 4>& s) const {
+    const truth& r = p.ref[i];
     const mp50 dp = sqrt(mp50(pow(mp50(s[0]) - r.at_pos[0], 2) + pow(mp50(s[1]) - r.at_pos[1], 2)));
     const mp50 np = sqrt(mp50(r.at_pos[0] * r.at_pos[0] + r.at_pos[1] * r.at_pos[1]));
     const mp50 dv = sqrt(mp50(pow(mp50(s[2]) - r.at_vel[0], 2) + pow(mp50(s[3]) - r.at_vel[1], 2)));
     const mp50 nv = sqrt(mp50(r.at_vel[0] * r.at_vel[0] + r.at_vel[1] * r.at_vel[1]));
-    worst = std::max({worst, static_cast<double>(mp50(dp / np)), static_cast<double>(mp50(dv / nv))});
+    return std::max(static_cast<double>(mp50(dp / np)), static_cast<double>(mp50(dv / nv)));
   }
-  state.counters["max_rel_err"] = worst;
+};
+
+// ---- Benchmark bodies ----
+
+// query(input) timed over the set's inputs; Error<T> judges it against the references.
+template <class T, template <class> class Error, class Query>
+void on_inputs(benchmark::State& state, set which, Query query) {
+  const prepared<T>& p = data<T>(which);
+  lob_bench::time_and_measure(state, p.in, query, Error<T>{p}, "max_rel_err");
+}
+
+// query(flight) timed over flights built beforehand from the set's inputs.
+template <class T, template <class> class Error, class Query>
+void on_flights(benchmark::State& state, set which, Query query) {
+  const prepared<T>& p = data<T>(which);
+  std::vector<lob::linear_flight<T>> flights;
+  for (const input& in : p.in) flights.push_back(lob_flight<T>(in));
+  lob_bench::time_and_measure(state, flights, query, Error<T>{p}, "max_rel_err");
+}
+
+// A flight built beforehand and the time it is asked at.
+template <class T>
+struct flight_at {
+  lob::linear_flight<T> flight;
+  T t;
+};
+
+template <class T>
+void bm_at_lob(benchmark::State& state, set which) {
+  const prepared<T>& p = data<T>(which);
+  std::vector<flight_at<T>> cases;
+  for (const input& in : p.in) cases.push_back({lob_flight<T>(in), T(in.t_query)});
+  lob_bench::time_and_measure(
+      state, cases, [](const flight_at<T>& c) { return lob_at<T>(c.flight, c.t); }, at_error<T>{p},
+      "max_rel_err");
 }
 
 template <class T>
@@ -472,63 +396,68 @@ std::string type_name() {
   return std::is_same_v<T, float> ? "float" : "double";
 }
 
+template <class F>
+void add(const std::string& name, F body) {
+  benchmark::RegisterBenchmark(name.c_str(), body);
+}
+
+template <class T>
+void register_landing(const std::string& g, set w, const char* naive_name, bool with_odeint) {
+  using flight = lob::linear_flight<T>;
+  add(g + "/lob", [w](benchmark::State& st) {
+    on_flights<T, landing_error>(st, w, [](const flight& f) { return f.landing(T(0)); });
+  });
+  add(g + "/lob_with_make", [w](benchmark::State& st) {
+    on_inputs<T, landing_error>(st, w, [](const input& in) { return lob_landing<T>(in); });
+  });
+  add(g + naive_name, [w](benchmark::State& st) {
+    on_inputs<T, landing_error>(st, w, w == set::vacuum ? &naive_vacuum_landing<T> : &naive_linear_landing<T>);
+  });
+  if (with_odeint)
+    add(g + "/odeint_dopri5", [w](benchmark::State& st) { on_inputs<double, landing_error>(st, w, &odeint_landing); });
+}
+
 template <class T>
 void register_type() {
+  using flight = lob::linear_flight<T>;
   struct named {
     const char* name;
     set which;
   };
+  const std::string tail = "_" + type_name<T>();
   const named sets[] = {{"linear", set::typical}, {"vacuum", set::vacuum}};
   for (const named& s : sets) {
-    const std::string tail = "_" + type_name<T>();
     const set w = s.which;
     const std::string g = std::string(s.name);
-    benchmark::RegisterBenchmark((g + "_landing" + tail + "/lob").c_str(),
-                                 [w](benchmark::State& st) { bm_landing_prebuilt<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "_landing" + tail + "/lob_with_make").c_str(),
-                                 [w](benchmark::State& st) { bm_landing_lob<T>(st, w); });
-    benchmark::RegisterBenchmark(
-        (g + "_landing" + tail + (w == set::vacuum ? "/naive_closed_form" : "/naive_lambert_w")).c_str(),
-        [w](benchmark::State& st) { bm_landing_naive<T>(st, w); });
-    if (std::is_same_v<T, double> && w == set::typical)
-      benchmark::RegisterBenchmark((g + "_landing" + tail + "/odeint_dopri5").c_str(),
-                                   [w](benchmark::State& st) { bm_landing_odeint(st, w); });
-    benchmark::RegisterBenchmark((g + "_range" + tail + "/lob").c_str(),
-                                 [w](benchmark::State& st) { bm_range_prebuilt<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "_range" + tail + "/lob_with_make").c_str(),
-                                 [w](benchmark::State& st) { bm_range<T>(st, w, false); });
-    benchmark::RegisterBenchmark(
-        (g + "_range" + tail + (w == set::vacuum ? "/naive_closed_form" : "/naive_lambert_w")).c_str(),
-        [w](benchmark::State& st) { bm_range<T>(st, w, true); });
-    if (std::is_same_v<T, double> && w == set::typical)
-      benchmark::RegisterBenchmark((g + "_range" + tail + "/odeint_dopri5").c_str(),
-                                   [w](benchmark::State& st) { bm_range_odeint(st, w); });
-    benchmark::RegisterBenchmark((g + "_apex" + tail + "/lob").c_str(),
-                                 [w](benchmark::State& st) { bm_apex_prebuilt<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "_apex" + tail + "/lob_with_make").c_str(),
-                                 [w](benchmark::State& st) { bm_apex<T>(st, w, false); });
-    benchmark::RegisterBenchmark((g + "_apex" + tail + "/naive_closed_form").c_str(),
-                                 [w](benchmark::State& st) { bm_apex<T>(st, w, true); });
-    benchmark::RegisterBenchmark((g + "_at" + tail + "/lob").c_str(),
-                                 [w](benchmark::State& st) { bm_at<T>(st, w, false); });
-    benchmark::RegisterBenchmark((g + "_at" + tail + "/naive_closed_form").c_str(),
-                                 [w](benchmark::State& st) { bm_at<T>(st, w, true); });
+    const char* naive_name = w == set::vacuum ? "/naive_closed_form" : "/naive_lambert_w";
+    const bool with_odeint = std::is_same_v<T, double> && w == set::typical;
+    register_landing<T>(g + "_landing" + tail, w, naive_name, with_odeint);
+    add(g + "_range" + tail + "/lob", [w](benchmark::State& st) {
+      on_flights<T, range_error>(st, w, [](const flight& f) { return f.range(T(0)); });
+    });
+    add(g + "_range" + tail + "/lob_with_make",
+        [w](benchmark::State& st) { on_inputs<T, range_error>(st, w, &lob_range<T>); });
+    add(g + "_range" + tail + naive_name,
+        [w](benchmark::State& st) { on_inputs<T, range_error>(st, w, &naive_range<T>); });
+    if (with_odeint)
+      add(g + "_range" + tail + "/odeint_dopri5", [w](benchmark::State& st) {
+        on_inputs<double, range_error>(st, w, [](const input& in) { return odeint_landing(in).range; });
+      });
+    add(g + "_apex" + tail + "/lob", [w](benchmark::State& st) {
+      on_flights<T, apex_error>(st, w, [](const flight& f) { return f.apex(); });
+    });
+    add(g + "_apex" + tail + "/lob_with_make",
+        [w](benchmark::State& st) { on_inputs<T, apex_error>(st, w, &lob_apex<T>); });
+    add(g + "_apex" + tail + "/naive_closed_form",
+        [w](benchmark::State& st) { on_inputs<T, apex_error>(st, w, &naive_apex<T>); });
+    add(g + "_at" + tail + "/lob", [w](benchmark::State& st) { bm_at_lob<T>(st, w); });
+    add(g + "_at" + tail + "/naive_closed_form",
+        [w](benchmark::State& st) { on_inputs<T, at_error>(st, w, &naive_at<T>); });
   }
   // The weak-drag corner, k v_z/g = 1e-6 and 1e-9, where the textbook form loses its digits.
   const named weak[] = {{"linear_landing_weak6", set::weak6}, {"linear_landing_weak9", set::weak9}};
-  for (const named& s : weak) {
-    const std::string g = std::string(s.name) + "_" + type_name<T>();
-    const set w = s.which;
-    benchmark::RegisterBenchmark((g + "/lob").c_str(),
-                                 [w](benchmark::State& st) { bm_landing_prebuilt<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "/lob_with_make").c_str(),
-                                 [w](benchmark::State& st) { bm_landing_lob<T>(st, w); });
-    benchmark::RegisterBenchmark((g + "/naive_lambert_w").c_str(),
-                                 [w](benchmark::State& st) { bm_landing_naive<T>(st, w); });
-    if (std::is_same_v<T, double>)
-      benchmark::RegisterBenchmark((g + "/odeint_dopri5").c_str(),
-                                   [w](benchmark::State& st) { bm_landing_odeint(st, w); });
-  }
+  for (const named& s : weak)
+    register_landing<T>(std::string(s.name) + tail, s.which, "/naive_lambert_w", std::is_same_v<T, double>);
 }
 
 const int registered = [] {

@@ -16,30 +16,19 @@
 //
 // Names are "<group>/<variant>"; bench/ratio_table.py prints each variant's time relative
 // to the group's "lob" variant. Counter "max_rel_err": relative error of the range against
-// the 25-digit mpmath reference, row ball_vt33 of tests/data/integrate_quadratic_reference.csv
-// (scripts/integrate_reference.py: mpmath odefun at 40 digits, checked at 50), computed
-// before timing.
+// the 25-digit mpmath reference of ball_vt33.hpp, computed outside the timed loop.
 #include <benchmark/benchmark.h>
 
 #include <array>
 #include <cmath>
-#include <cstdint>
 #include <vector>
 
-#include <boost/math/tools/toms748_solve.hpp>
-#include <boost/numeric/odeint.hpp>
-
+#include "ball_vt33.hpp"
 #include "lob/lob.hpp"
+#include "odeint_landing.hpp"
+#include "runner.hpp"
 
 namespace {
-
-// Inputs read through volatile so that the optimiser cannot fold the computation.
-volatile double input_speed = 40.0;
-volatile double input_elevation_deg = 35.0;
-volatile double input_terminal_speed = 33.0;
-
-// Range [m] of row ball_vt33 (c = g / 33^2, g = 9.80665) from the mpmath reference.
-constexpr long double reference_range = 82.10497222416477104478283L;
 
 struct ball {
   double c;
@@ -48,14 +37,10 @@ struct ball {
 
 ball read_inputs() {
   const double g = lob::standard_gravity<double>();
-  const double vt = input_terminal_speed;
-  const double v0 = input_speed;
-  const double th = lob::deg(double(input_elevation_deg));
+  const double vt = lob_bench::ball_terminal_speed;
+  const double v0 = lob_bench::ball_speed;
+  const double th = lob::deg(double(lob_bench::ball_elevation_deg));
   return {g / (vt * vt), v0 * std::cos(th), v0 * std::sin(th)};
-}
-
-double rel_err(double value) {
-  return static_cast<double>(std::fabs(static_cast<long double>(value) - reference_range) / reference_range);
 }
 
 // lob, through fly() (default options: the hodograph fast path).
@@ -76,22 +61,10 @@ lob::flight_options<double> adaptive(double tol) {
   return o;
 }
 
-void run_lob(benchmark::State& state, const lob::flight_options<double>& o) {
-  double r = 0;
-  for (auto _ : state) {
-    r = lob_range(read_inputs(), o);
-    benchmark::DoNotOptimize(r);
-  }
-  state.counters["max_rel_err"] = rel_err(lob_range(read_inputs(), o));
-}
-
-// Boost.Odeint: the dense-output Dormand–Prince stepper, stepped until the height turns
-// negative, then the landing located on its dense output (calc_state) with TOMS 748.
-using odeint_state = std::array<double, 6>;
-
-template <class State = odeint_state>
+// Boost.Odeint (odeint_landing.hpp): the 3-D state x, y, z, vx, vy, vz, stepped until the
+// height is no longer positive.
+template <class State>
 double odeint_range(const ball& b, double tol) {
-  namespace odeint = boost::numeric::odeint;
   const double g = lob::standard_gravity<double>();
   const auto rhs = [&](const State& x, State& dx, double) {
     const double s = std::sqrt(x[3] * x[3] + x[4] * x[4] + x[5] * x[5]);
@@ -102,35 +75,10 @@ double odeint_range(const ball& b, double tol) {
     dx[4] = -b.c * s * x[4];
     dx[5] = -b.c * s * x[5] - g;
   };
-  auto stepper = odeint::make_dense_output(tol, tol, odeint::runge_kutta_dopri5<State>());
-  stepper.initialize(State{0, 0, 0, b.vx, 0, b.vz}, 0.0, 0.01);
-  for (int i = 0; i < 100000; ++i) {
-    stepper.do_step(rhs);
-    if (stepper.current_state()[2] <= 0 && stepper.current_time() > 0) {
-      State x = stepper.current_state();
-      const auto height = [&](double t) {
-        stepper.calc_state(t, x);
-        return x[2];
-      };
-      std::uintmax_t it = 100;
-      const auto r =
-          boost::math::tools::toms748_solve(height, stepper.previous_time(), stepper.current_time(),
-                                            boost::math::tools::eps_tolerance<double>(), it);
-      stepper.calc_state((r.first + r.second) / 2, x);
-      return std::hypot(x[0], x[1]);
-    }
-  }
-  return NAN;
-}
-
-template <class State>
-void run_odeint(benchmark::State& state, double tol) {
-  double r = 0;
-  for (auto _ : state) {
-    r = odeint_range<State>(read_inputs(), tol);
-    benchmark::DoNotOptimize(r);
-  }
-  state.counters["max_rel_err"] = rel_err(odeint_range<State>(read_inputs(), tol));
+  const lob_bench::odeint_setup<double> setup{tol, 0.01, 100000, 2, {}, 100};
+  const auto l = lob_bench::odeint_landing(rhs, State{0, 0, 0, b.vx, 0, b.vz}, setup,
+                                           [](const State& now) { return now[2] <= 0; });
+  return std::isnan(l.time) ? NAN : std::hypot(l.state[0], l.state[1]);
 }
 
 // Semi-implicit Euler as an engine steps it: velocity first, then position, at 60 Hz;
@@ -152,10 +100,24 @@ double engine_range(const ball& b) {
   return NAN;
 }
 
+template <class Range>
+void run(benchmark::State& state, Range range) {
+  lob_bench::time_and_measure_one(
+      state, [range] { return range(read_inputs()); }, &lob_bench::ball_range_rel_err<double>, "max_rel_err");
+}
+
+void run_lob(benchmark::State& state, const lob::flight_options<double>& o) {
+  run(state, [&o](const ball& b) { return lob_range(b, o); });
+}
+
 void BM_lob_hodograph(benchmark::State& state) { run_lob(state, lob::flight_options<double>{}); }
 void BM_lob_adaptive(benchmark::State& state, double tol) { run_lob(state, adaptive(tol)); }
-void BM_odeint(benchmark::State& state, double tol) { run_odeint<odeint_state>(state, tol); }
-void BM_odeint_vector(benchmark::State& state, double tol) { run_odeint<std::vector<double>>(state, tol); }
+void BM_odeint(benchmark::State& state, double tol) {
+  run(state, [tol](const ball& b) { return odeint_range<std::array<double, 6>>(b, tol); });
+}
+void BM_odeint_vector(benchmark::State& state, double tol) {
+  run(state, [tol](const ball& b) { return odeint_range<std::vector<double>>(b, tol); });
+}
 void BM_lob_euler(benchmark::State& state) {
   lob::flight_options<double> o;
   o.method = lob::stepper::semi_implicit_euler;
@@ -169,12 +131,7 @@ void BM_lob_rk4(benchmark::State& state) {
   run_lob(state, o);
 }
 void BM_engine(benchmark::State& state) {
-  double r = 0;
-  for (auto _ : state) {
-    r = engine_range(read_inputs());
-    benchmark::DoNotOptimize(r);
-  }
-  state.counters["max_rel_err"] = rel_err(engine_range(read_inputs()));
+  run(state, [](const ball& b) { return engine_range(b); });
 }
 
 BENCHMARK(BM_lob_hodograph)->Name("quadratic_range_double/lob_fly_hodograph");

@@ -10,12 +10,15 @@
 #include <array>
 #include <cmath>
 #include <cstddef>
+#include <optional>
 #include <random>
-#include <vector>
+#include <span>
+#include <string>
 
 #include <boost/numeric/odeint.hpp>
 
 #include "lob/lob.hpp"
+#include "runner.hpp"
 
 namespace {
 
@@ -72,31 +75,39 @@ struct ode_model {
   }
 };
 
-// Height minus target height where the horizontal distance first reaches d, by dense
-// output stepping and bisection in time on the interpolant; -1e9 if not reached by 60 s.
-double ode_miss(int kind, double elevation, double azimuth, double d, double target_h) {
+// The state where reached(state) first holds after a step, by dense-output stepping and 60
+// bisections in time on the interpolant, where crossed(state) tells the sides apart; none if
+// not by 60 s.
+template <class Reached, class Crossed>
+std::optional<ode_state> ode_first(int kind, const ode_state& start, Reached reached, Crossed crossed) {
   auto stepper = odeint::make_dense_output(1e-10, 1e-10, odeint::runge_kutta_dopri5<ode_state>());
-  const double c = std::cos(elevation);
-  ode_state y{0, 0, 0, aim_speed * c * std::cos(azimuth), aim_speed * c * std::sin(azimuth),
-              aim_speed * std::sin(elevation)};
-  stepper.initialize(y, 0.0, 0.01);
+  stepper.initialize(start, 0.0, 0.01);
   const ode_model rhs{kind};
   for (int i = 0; i < 100000 && stepper.current_time() < 60.0; ++i) {
     stepper.do_step(rhs);
-    const ode_state& now = stepper.current_state();
-    if (std::hypot(now[0], now[1]) >= d) {
-      double lo = stepper.previous_time(), hi = stepper.current_time();
-      ode_state mid;
-      for (int k = 0; k < 60 && hi - lo > 1e-14; ++k) {
-        const double t = 0.5 * (lo + hi);
-        stepper.calc_state(t, mid);
-        (std::hypot(mid[0], mid[1]) >= d ? hi : lo) = t;
-      }
-      stepper.calc_state(hi, mid);
-      return mid[2] - target_h;
+    if (!reached(stepper.current_state())) continue;
+    double lo = stepper.previous_time(), hi = stepper.current_time();
+    ode_state mid;
+    for (int k = 0; k < 60 && hi - lo > 1e-14; ++k) {
+      const double t = 0.5 * (lo + hi);
+      stepper.calc_state(t, mid);
+      (crossed(mid) ? hi : lo) = t;
     }
+    stepper.calc_state(hi, mid);
+    return mid;
   }
-  return -1e9;
+  return std::nullopt;
+}
+
+// Height minus target height where the horizontal distance first reaches d; -1e9 if not
+// reached by 60 s.
+double ode_miss(int kind, double elevation, double azimuth, double d, double target_h) {
+  const double c = std::cos(elevation);
+  const ode_state y{0, 0, 0, aim_speed * c * std::cos(azimuth), aim_speed * c * std::sin(azimuth),
+                    aim_speed * std::sin(elevation)};
+  const auto far_enough = [d](const ode_state& x) { return std::hypot(x[0], x[1]) >= d; };
+  const std::optional<ode_state> at = ode_first(kind, y, far_enough, far_enough);
+  return at ? (*at)[2] - target_h : -1e9;
 }
 
 struct ode_aim {
@@ -137,27 +148,13 @@ ode_aim ode_scan_aim(int kind, const vec& target) {
   return out;
 }
 
+// Horizontal distance where the body comes down through landing_h; 0 if not by 60 s.
 double ode_range(int kind, double elevation, double landing_h) {
-  auto stepper = odeint::make_dense_output(1e-10, 1e-10, odeint::runge_kutta_dopri5<ode_state>());
-  ode_state y{0, 0, 0, aim_speed * std::cos(elevation), 0, aim_speed * std::sin(elevation)};
-  stepper.initialize(y, 0.0, 0.01);
-  const ode_model rhs{kind};
-  for (int i = 0; i < 100000 && stepper.current_time() < 60.0; ++i) {
-    stepper.do_step(rhs);
-    const ode_state& now = stepper.current_state();
-    if (now[5] < 0 && now[2] <= landing_h) {
-      double lo = stepper.previous_time(), hi = stepper.current_time();
-      ode_state mid;
-      for (int k = 0; k < 60 && hi - lo > 1e-14; ++k) {
-        const double t = 0.5 * (lo + hi);
-        stepper.calc_state(t, mid);
-        (mid[2] <= landing_h ? hi : lo) = t;
-      }
-      stepper.calc_state(hi, mid);
-      return std::hypot(mid[0], mid[1]);
-    }
-  }
-  return 0;
+  const ode_state y{0, 0, 0, aim_speed * std::cos(elevation), 0, aim_speed * std::sin(elevation)};
+  const std::optional<ode_state> at =
+      ode_first(kind, y, [landing_h](const ode_state& x) { return x[5] < 0 && x[2] <= landing_h; },
+                [landing_h](const ode_state& x) { return x[2] <= landing_h; });
+  return at ? std::hypot((*at)[0], (*at)[1]) : 0;
 }
 
 // Scan 0.1..89.9 degrees at 0.1 degree for the longest range, then bisect on the sign of
@@ -239,116 +236,104 @@ template <class M>
 void aim_lob(benchmark::State& state, M model) {
   const lob::medium<double> air;
   const lob::solve_options<double> opts = lob_options();
-  const target_set& set = targets();
-  std::size_t i = 0;
+  const auto& set = targets().targets;
+  const auto aim = [&](const vec& t) {
+    return lob::aim(model, air, lob::aim_request<double>{vec::Zero(), t, aim_speed}, opts);
+  };
   int failures = 0;
-  for (auto _ : state) {
-    const auto s =
-        lob::aim(model, air, lob::aim_request<double>{vec::Zero(), set.targets[i], aim_speed}, opts);
+  lob_bench::time_cycling(state, set, [&](const vec& t) {
+    auto s = aim(t);
     if (!s) ++failures;
-    benchmark::DoNotOptimize(s);
-    i = (i + 1) % problem_count;
-  }
-  double worst = 0;
-  for (const vec& t : set.targets) {
-    const auto s = lob::aim(model, air, lob::aim_request<double>{vec::Zero(), t, aim_speed}, opts);
-    if (!s || s->count() != 2) {
-      worst = INFINITY;
-      continue;
-    }
-    worst = std::max({worst, true_miss(model, s->flat->elevation, s->flat->azimuth, t),
-                      true_miss(model, s->lofted->elevation, s->lofted->azimuth, t)});
-  }
-  state.counters["max_miss_m"] = worst;
+    return s;
+  });
+  state.counters["max_miss_m"] = lob_bench::worst_error(set, aim, [&](std::size_t i, const auto& s) {
+    if (!s || s->count() != 2) return double(INFINITY);
+    return std::max(true_miss(model, s->flat->elevation, s->flat->azimuth, set[i]),
+                    true_miss(model, s->lofted->elevation, s->lofted->azimuth, set[i]));
+  });
   state.counters["failures"] = failures;
 }
 
 template <class M>
 void aim_odeint(benchmark::State& state, M model, int kind) {
-  const target_set& set = targets();
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const ode_aim a = ode_scan_aim(kind, set.targets[i]);
-    benchmark::DoNotOptimize(a);
-    i = (i + 1) % problem_count;
-  }
-  double worst = 0;
-  for (std::size_t j = 0; j < 8; ++j) {  // the scan is slow; 8 targets judge it
-    const vec& t = set.targets[j];
-    const ode_aim a = ode_scan_aim(kind, t);
-    worst =
-        std::max({worst, true_miss(model, a.flat, a.azimuth, t), true_miss(model, a.lofted, a.azimuth, t)});
-  }
-  state.counters["max_miss_m"] = worst;
+  const auto& set = targets().targets;
+  const auto scan = [kind](const vec& t) { return ode_scan_aim(kind, t); };
+  lob_bench::time_cycling(state, set, scan);
+  // The scan is slow; the first 8 targets judge it.
+  state.counters["max_miss_m"] =
+      lob_bench::worst_error(std::span(set).first(8), scan, [&](std::size_t i, const ode_aim& a) {
+        return std::max(true_miss(model, a.flat, a.azimuth, set[i]), true_miss(model, a.lofted, a.azimuth, set[i]));
+      });
 }
 
 constexpr std::array<double, 4> landing_heights{0.0, -12.0, 5.0, -2.5};
+
+// |range at the elevation found - the best range| / the best range, at landing_heights[i].
+template <class M>
+auto farthest_error(const M& model) {
+  return [&model](std::size_t i, double elevation) {
+    const double h = landing_heights[i];
+    const double best = reference_best_range(model, h);
+    return std::abs(true_range(model, elevation, h) - best) / best;
+  };
+}
 
 template <class M>
 void farthest_lob(benchmark::State& state, M model) {
   const lob::medium<double> air;
   const lob::solve_options<double> opts = lob_options();
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const auto s = lob::farthest_elevation(
-        model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, landing_heights[i]}, opts);
-    benchmark::DoNotOptimize(s);
-    i = (i + 1) % landing_heights.size();
-  }
-  double worst = 0;
-  for (const double h : landing_heights) {
-    const auto s = lob::farthest_elevation(
-        model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, h}, opts);
-    const double best = reference_best_range(model, h);
-    worst = std::max(worst, s ? std::abs(true_range(model, s->elevation, h) - best) / best : INFINITY);
-  }
-  state.counters["max_rel_err"] = worst;
+  lob_bench::time_and_measure(
+      state, landing_heights,
+      [&](double h) {
+        return lob::farthest_elevation(model, air, lob::farthest_request<double>{vec::Zero(), aim_speed, 0.0, h},
+                                       opts);
+      },
+      [&](std::size_t i, const auto& s) { return s ? farthest_error(model)(i, s->elevation) : double(INFINITY); },
+      "max_rel_err");
 }
 
 template <class M>
 void farthest_odeint(benchmark::State& state, M model, int kind) {
-  std::size_t i = 0;
-  for (auto _ : state) {
-    const double e = ode_scan_farthest(kind, landing_heights[i]);
-    benchmark::DoNotOptimize(e);
-    i = (i + 1) % landing_heights.size();
-  }
-  double worst = 0;
-  for (const double h : landing_heights) {
-    const double e = ode_scan_farthest(kind, h);
-    const double best = reference_best_range(model, h);
-    worst = std::max(worst, std::abs(true_range(model, e, h) - best) / best);
-  }
-  state.counters["max_rel_err"] = worst;
+  lob_bench::time_and_measure(
+      state, landing_heights, [kind](double h) { return ode_scan_farthest(kind, h); }, farthest_error(model),
+      "max_rel_err");
 }
 
 const lob::vacuum<double> vacuum_model{};
 const lob::linear_drag<double> linear_model{linear_rate};
 const lob::quadratic_drag<double> quadratic_model{quadratic_coefficient};
 
-BENCHMARK_CAPTURE(aim_lob, vacuum, vacuum_model)->Name("aim_vacuum_double/lob");
-BENCHMARK_CAPTURE(aim_odeint, vacuum, vacuum_model, 0)
-    ->Name("aim_vacuum_double/odeint_scan_bisect")
-    ->Iterations(20);
-BENCHMARK_CAPTURE(aim_lob, linear, linear_model)->Name("aim_linear_double/lob");
-BENCHMARK_CAPTURE(aim_odeint, linear, linear_model, 1)
-    ->Name("aim_linear_double/odeint_scan_bisect")
-    ->Iterations(20);
-BENCHMARK_CAPTURE(aim_lob, quadratic, quadratic_model)->Name("aim_quadratic_double/lob");
-BENCHMARK_CAPTURE(aim_odeint, quadratic, quadratic_model, 2)
-    ->Name("aim_quadratic_double/odeint_scan_bisect")
-    ->Iterations(20);
-BENCHMARK_CAPTURE(farthest_lob, vacuum, vacuum_model)->Name("farthest_vacuum_double/lob");
-BENCHMARK_CAPTURE(farthest_odeint, vacuum, vacuum_model, 0)
-    ->Name("farthest_vacuum_double/odeint_scan_bisect")
-    ->Iterations(8);
-BENCHMARK_CAPTURE(farthest_lob, linear, linear_model)->Name("farthest_linear_double/lob");
-BENCHMARK_CAPTURE(farthest_odeint, linear, linear_model, 1)
-    ->Name("farthest_linear_double/odeint_scan_bisect")
-    ->Iterations(8);
-BENCHMARK_CAPTURE(farthest_lob, quadratic, quadratic_model)->Name("farthest_quadratic_double/lob");
-BENCHMARK_CAPTURE(farthest_odeint, quadratic, quadratic_model, 2)
-    ->Name("farthest_quadratic_double/odeint_scan_bisect")
-    ->Iterations(8);
+// "<task>_<model>_double/lob" and ".../odeint_scan_bisect" (a fixed count of iterations: the
+// scan takes seconds).
+template <class M, class Lob, class Peer>
+void register_pair(const std::string& group, M model, int kind, Lob lob_body, Peer peer_body,
+                   benchmark::IterationCount peer_iterations) {
+  benchmark::RegisterBenchmark((group + "/lob").c_str(),
+                               [model, lob_body](benchmark::State& st) { lob_body(st, model); });
+  benchmark::RegisterBenchmark((group + "/odeint_scan_bisect").c_str(),
+                               [model, kind, peer_body](benchmark::State& st) { peer_body(st, model, kind); })
+      ->Iterations(peer_iterations);
+}
+
+template <class M>
+void register_aim(const char* name, M model, int kind) {
+  register_pair(std::string("aim_") + name + "_double", model, kind, &aim_lob<M>, &aim_odeint<M>, 20);
+}
+
+template <class M>
+void register_farthest(const char* name, M model, int kind) {
+  register_pair(std::string("farthest_") + name + "_double", model, kind, &farthest_lob<M>, &farthest_odeint<M>,
+                8);
+}
+
+const int registered = [] {
+  register_aim("vacuum", vacuum_model, 0);
+  register_aim("linear", linear_model, 1);
+  register_aim("quadratic", quadratic_model, 2);
+  register_farthest("vacuum", vacuum_model, 0);
+  register_farthest("linear", linear_model, 1);
+  register_farthest("quadratic", quadratic_model, 2);
+  return 0;
+}();
 
 }  // namespace
