@@ -38,22 +38,24 @@ odeint_touchdown<State, Real> odeint_landing(System rhs, const State& start, con
   auto stepper =
       odeint::make_dense_output(setup.tolerance, setup.tolerance, odeint::runge_kutta_dopri5<State, Real>());
   stepper.initialize(start, Real(0), setup.first_step);
-  for (int i = 0; i < setup.max_steps; ++i) {
+  int steps = 0;
+  while (steps < setup.max_steps) {
     stepper.do_step(rhs);
-    if (!landed(stepper.current_state())) continue;
-    State x = stepper.current_state();  // sized as the state is (a std::vector has no fixed size)
-    const auto height = [&](Real t) {
-      stepper.calc_state(t, x);
-      return x[setup.height];
-    };
-    std::uintmax_t iterations = setup.root_iterations;
-    const std::pair<Real, Real> r = boost::math::tools::toms748_solve(
-        height, stepper.previous_time(), stepper.current_time(), setup.root_tolerance, iterations);
-    const Real t = (r.first + r.second) / 2;
-    stepper.calc_state(t, x);
-    return {t, x};
+    ++steps;
+    if (landed(stepper.current_state())) break;
   }
-  return {std::numeric_limits<Real>::quiet_NaN(), stepper.current_state()};
+  State x = stepper.current_state();  // sized as the state is (a std::vector has no fixed size)
+  if (!landed(x)) return {std::numeric_limits<Real>::quiet_NaN(), x};
+  const auto height = [&](Real t) {
+    stepper.calc_state(t, x);
+    return x[setup.height];
+  };
+  std::uintmax_t iterations = setup.root_iterations;
+  const std::pair<Real, Real> r = boost::math::tools::toms748_solve(
+      height, stepper.previous_time(), stepper.current_time(), setup.root_tolerance, iterations);
+  const Real t = (r.first + r.second) / 2;
+  stepper.calc_state(t, x);
+  return {t, x};
 }
 
 }  // namespace lob_bench
