@@ -18,21 +18,21 @@ namespace lob {
 
 /// Flies `model` through `air` from `launch`. Returns a trajectory value whose queries
 /// (`at`, `apex`, `crossing`, `landing`, `range`) are `const` and allocation-free.
-/// Closed-form models (vacuum, linear drag) give a `linear_flight<T>`; `options` only
-/// matter for integrated models. Every other model (quadratic_drag, linear_quadratic_drag,
-/// any user type satisfying `DragModel`) gives a `result<integrated_flight<M>>` with the
-/// same queries plus `sample()` (lob/integrate/integrated_flight.hpp).
+/// Closed-form models (vacuum, linear drag) give a `linear_flight<T>`, which honours
+/// `options.max_time` (the rest of `options` only matters for integrated models). Every other model
+/// (quadratic_drag, linear_quadratic_drag, any user type satisfying `DragModel`) gives a
+/// `result<integrated_flight<M>>` with the same queries plus `sample()`
+/// (lob/integrate/integrated_flight.hpp).
 template <DragModel M>
 [[nodiscard]] auto fly(const M& model, const medium<scalar_of<M>>& air,
                        const shot<scalar_of<M>>& launch,
                        const flight_options<scalar_of<M>>& options = {}) {
   using T = scalar_of<M>;
   if constexpr (model_traits<M>::closed_form) {
-    (void)options;
     using trajectory = linear_flight<T>;
     const status ok = check_model(model);
     if (!ok) return result<trajectory>(unexpected<error>(ok.error()));
-    return trajectory::make(model_traits<M>::linear_rate(model), air, launch);
+    return trajectory::make(model_traits<M>::linear_rate(model), air, launch, options.max_time);
   } else {
     return integrated_flight<M>::make(model, air, launch, options);
   }

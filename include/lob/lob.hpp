@@ -8,6 +8,7 @@
 #include "lob/core/vec.hpp"
 #include "lob/core/error.hpp"
 #include "lob/core/result.hpp"
+#include "lob/core/checks.hpp"
 #include "lob/core/units.hpp"
 #include "lob/core/flight_types.hpp"
 #include "lob/core/options.hpp"

@@ -4,6 +4,7 @@
 /// `state` (a point of the flight), `side` (rising or falling branch).
 
 #include "lob/core/real.hpp"
+#include "lob/core/result.hpp"
 #include "lob/core/units.hpp"
 #include "lob/core/vec.hpp"
 
@@ -49,11 +50,10 @@ template <Real T>
   return T(up(air).dot(position));
 }
 
-/// Speed of a state [m/s].
+/// Speed of a state [m/s], without overflow of the squares (finite for a finite velocity).
 template <Real T>
 [[nodiscard]] T speed(const state<T>& s) {
-  using std::sqrt;
-  return sqrt(T(s.velocity.squaredNorm()));
+  return scaled_norm(s.velocity);
 }
 
 /// The horizontal part of a vector (its component along "up" removed).
@@ -70,16 +70,38 @@ template <Real T>
   using std::atan2;
   using std::sqrt;
   const T vertical = up(air).dot(s.velocity);
-  const T level = sqrt(T(horizontal(s.velocity, air).squaredNorm()));
+  const T level = scaled_norm(horizontal(s.velocity, air));
   return atan2(-vertical, level);
 }
 
 /// Horizontal distance of a state from the launch point [m]: the range at landing.
 template <Real T>
 [[nodiscard]] T horizontal_distance(const state<T>& s, const shot<T>& launch, const medium<T>& air) {
-  using std::sqrt;
-  return sqrt(T(horizontal(vec3<T>(s.position - launch.position), air).squaredNorm()));
+  return scaled_norm(horizontal(vec3<T>(s.position - launch.position), air));
 }
+
+namespace detail {
+/// `invalid_argument` when a squared length that flights form (gravity, wind, launch
+/// velocity, launch velocity relative to the air) overflows T: checked once by `fly()`,
+/// so that every query may use |v|^2. The message gives the length itself.
+template <Real T>
+[[nodiscard]] status check_squares(const medium<T>& air, const shot<T>& launch) {
+  if (!square_is_finite(air.gravity))
+    return fail(errc::invalid_argument, "gravity is too large: its square overflows T; |g|",
+                scaled_norm(air.gravity));
+  if (!square_is_finite(air.wind))
+    return fail(errc::invalid_argument, "wind is too fast: its square overflows T; |wind|",
+                scaled_norm(air.wind));
+  if (!square_is_finite(launch.velocity))
+    return fail(errc::invalid_argument, "launch speed is too large: its square overflows T; speed",
+                scaled_norm(launch.velocity));
+  const vec3<T> air_velocity = launch.velocity - air.wind;
+  if (!square_is_finite(air_velocity))
+    return fail(errc::invalid_argument, "launch air speed is too large: its square overflows T; air speed",
+                scaled_norm(air_velocity));
+  return {};
+}
+}  // namespace detail
 
 /// A launch velocity from speed [m/s], elevation above the horizon [rad] and azimuth [rad]
 /// measured from +x towards +y, for the default z-up medium.

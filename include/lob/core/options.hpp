@@ -16,6 +16,28 @@ enum class stepper {
   semi_implicit_euler,  ///< velocity first, then position, fixed step (as engines step)
 };
 
+/// A number of integration steps that several flights draw from: the total budget of one
+/// solver call (`solve_options::max_total_steps`). Each step of a query of a flight whose
+/// options point to a pool takes one from it (a hodograph-path query takes
+/// `step_pool::fast_query_cost`); a query that finds it empty fails with `step_limit` and
+/// sets `exhausted`. Not synchronised: one pool per thread.
+struct step_pool {
+  std::int64_t left = 0;
+  bool exhausted = false;
+  /// Steps charged for one query on the hodograph path (about its cost in steps).
+  static constexpr std::int64_t fast_query_cost = 32;
+  /// Takes `n` steps; false (and `exhausted`) when fewer are left.
+  [[nodiscard]] bool draw(std::int64_t n = 1) noexcept {
+    if (left < n) {
+      exhausted = true;
+      left = 0;
+      return false;
+    }
+    left -= n;
+    return true;
+  }
+};
+
 /// Settings of an integrated flight. Every loop is capped: reaching `max_steps` is
 /// `errc::step_limit`, passing `max_time` without the event is `errc::time_limit`.
 template <Real T>
@@ -35,6 +57,9 @@ struct flight_options {
   /// Let models with a special method use it (quadratic drag in still air: the hodograph
   /// quadrature) for apex, crossings, landing and range; false forces the integration.
   bool use_fast_paths = true;
+  /// Where set, every query also draws its steps from this pool (see `step_pool`; the
+  /// solvers set it). Not owned.
+  step_pool* shared_steps = nullptr;
 };
 
 }  // namespace lob

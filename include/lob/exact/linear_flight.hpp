@@ -51,9 +51,12 @@ template <Real T>
 class linear_flight {
  public:
   /// Checks the inputs and builds the flight. Errors: `invalid_argument` for a negative or
-  /// non-finite rate, or a non-finite gravity, wind, position or velocity.
-  [[nodiscard]] static result<linear_flight> make(const T& rate, const medium<T>& air,
-                                                  const shot<T>& launch) {
+  /// non-finite rate, a non-finite gravity, wind, position or velocity, a gravity, wind or
+  /// launch (air) velocity whose square overflows T, or a `max_time` [s] not finite and > 0.
+  /// Every query whose event lies after `max_time` returns `time_limit` (as integrated
+  /// flights do).
+  [[nodiscard]] static result<linear_flight> make(const T& rate, const medium<T>& air, const shot<T>& launch,
+                                                  const T& max_time = T(100000)) {
     if (!is_finite(rate)) return fail(errc::invalid_argument, "drag rate must be finite", rate);
     if (rate < T(0)) return fail(errc::invalid_argument, "drag rate must be >= 0", rate);
     if (!is_finite(air.gravity)) return fail(errc::invalid_argument, "gravity must be finite");
@@ -62,7 +65,10 @@ class linear_flight {
       return fail(errc::invalid_argument, "launch position must be finite");
     if (!is_finite(launch.velocity))
       return fail(errc::invalid_argument, "launch velocity must be finite");
-    return linear_flight(rate, air, launch);
+    if (const status sq = detail::check_squares(air, launch); !sq) return unexpected<error>(sq.error());
+    if (!is_finite(max_time) || !(max_time > T(0)))
+      return fail(errc::invalid_argument, "max_time must be finite and > 0", max_time);
+    return linear_flight(rate, air, launch, max_time);
   }
 
   /// The state at time `t` [s] after launch, t >= 0 and finite. Errors: `invalid_argument`
@@ -136,7 +142,8 @@ class linear_flight {
       return fail(errc::invalid_argument, "height crossings need gravity, got |g| =", g_);
     const result<T> t = crossing_time(T(height - h0_), side::falling);
     if (!t) return unexpected<error>(t.error());
-    const T r = sqrt(T(drift(*t).squaredNorm()));
+    if (*t > max_time_) return fail(errc::time_limit, "the event lies beyond max_time, at t =", *t);
+    const T r = scaled_norm(drift(*t));
     if (!is_finite(r)) return fail(errc::invalid_argument, "the range overflows T; landing time", *t);
     return r;
   }
@@ -198,8 +205,8 @@ class linear_flight {
   [[nodiscard]] const T& rate() const noexcept { return k_; }
 
  private:
-  linear_flight(const T& rate, const medium<T>& air, const shot<T>& launch)
-      : k_(rate), air_(air), launch_(launch) {
+  linear_flight(const T& rate, const medium<T>& air, const shot<T>& launch, const T& max_time)
+      : k_(rate), air_(air), launch_(launch), max_time_(max_time) {
     using std::sqrt;
     g_ = sqrt(T(air.gravity.squaredNorm()));
     up_ =
@@ -290,7 +297,10 @@ class linear_flight {
     return s;
   }
 
-  [[nodiscard]] static result<state<T>> checked(const state<T>& s) {
+  // Every answer passes here: a state beyond max_time is time_limit, as for integrated
+  // flights (the closed forms find it, but the cap means the same for every model).
+  [[nodiscard]] result<state<T>> checked(const state<T>& s) const {
+    if (s.time > max_time_) return fail(errc::time_limit, "the event lies beyond max_time, at t =", s.time);
     if (!is_finite(s.position) || !is_finite(s.velocity) || !is_finite(s.time))
       return fail(errc::invalid_argument, "the state overflows T at time", s.time);
     return s;
@@ -582,6 +592,7 @@ class linear_flight {
   T k_;
   medium<T> air_;
   shot<T> launch_;
+  T max_time_;  // [s]: events after it are time_limit, as for integrated flights
   T g_{};
   vec3<T> up_;
   T w_{};   // vertical wind

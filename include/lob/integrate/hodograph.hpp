@@ -623,6 +623,10 @@ class hodograph_path {
       a = b;
       s = sb;
     }
+    // The horizontal distance gains e^-tau per unit of tau in the descent: at tau_max it has
+    // reached its limit to the last digit, so a distance beyond is never reached.
+    if (q == &hodograph_sums<T>::distance && T(level - s.distance) > T(0))
+      return fail(errc::never_reaches, "drag stops the body short of that distance; limit", s.distance);
     return fail(errc::no_convergence, "the point lies beyond the quadrature's reach, at", level);
   }
 
@@ -827,53 +831,90 @@ struct vertical_drop {
   T speed;
 };
 
+// The forms below hold for every c > 0 down to the denormals, where g/c overflows and
+// products such as 2 c d or c v0^2/g are denormal (a few significant bits): vt comes from
+// square roots taken apart when needed, and each tiny product enters only as 1 + O(it)
+// (through e^-x, (1 - e^-x)/x, log(1 + x)/x or atan(x)/x), never as a factor of the answer.
+template <Real T>
+[[nodiscard]] T vertical_terminal_speed(const T& c, const T& g) {
+  using std::sqrt;
+  const T q = g / c;
+  if (is_finite(q) && q >= std::numeric_limits<T>::min()) return sqrt(q);
+  return T(sqrt(g) / sqrt(c));
+}
+// (1 - e^-x) / x, continuous at 0 (value 1), 0 at infinity; x >= 0.
+template <Real T>
+[[nodiscard]] T one_minus_exp_over_x(const T& x) {
+  return x == T(0) ? T(1) : T(-detail::expm1(T(-x)) / x);
+}
+// atan(x) / x, continuous at 0 (value 1).
+template <Real T>
+[[nodiscard]] T atan_over_x(const T& x) {
+  using std::atan;
+  return x == T(0) ? T(1) : T(atan(x) / x);
+}
+
 template <Real T>
 [[nodiscard]] vertical_drop<T> vertical_fall(const T& c, const T& g, const T& w0, const T& d) {
   using std::sqrt;
-  const T vt = sqrt(T(g / c));
-  const T lambda = 2 * c * d;                               // 2 g d / vt^2
-  const T k0 = T(w0 / vt) * T(w0 / vt);                     // (w0/vt)^2
-  const T gain = -(T(1) - k0) * detail::expm1(T(-lambda));  // (w^2 - w0^2) / vt^2
-  const T w = vt * sqrt(T(k0 + gain));
-  const T dw = T(gain * vt * vt) / T(w + w0);  // w - w0
-  const T time = T(vt / g) * T(c * d + detail::log1p(T(dw / (vt + w0))));
+  const T vt = vertical_terminal_speed(c, g);
+  const T lambda = 2 * c * d;            // 2 g d / vt^2
+  const T k0 = T(w0 / vt) * T(w0 / vt);  // (w0/vt)^2
+  // w^2 - w0^2 = (vt^2 - w0^2) (1 - e^-lambda): as 2 g d (1 - k0) (1 - e^-lambda)/lambda
+  // while lambda is small (no vt^2, which overflows for denormal c), else directly.
+  const T gain = lambda <= T(1) ? T(T(2 * g * d) * (T(1) - k0) * one_minus_exp_over_x(lambda))
+                                : T(T(vt - w0) * T(vt + w0) * T(-detail::expm1(T(-lambda))));
+  const T w = sqrt(T(w0 * w0 + gain));
+  const T dw = gain / T(w + w0);  // w - w0
+  // (vt/g) (c d + log1p(dw/(vt + w0))), with (vt/g) c d = d/vt.
+  const T time = T(d / vt) + T(vt / g) * T(detail::log1p(T(dw / (vt + w0))));
   return {time, w};
+}
+
+// The vertical closed forms' answer, or `invalid_argument` where it leaves T's range.
+template <Real T>
+[[nodiscard]] result<hodograph_point<T>> vertical_point(const hodograph_point<T>& p) {
+  if (!is_finite(p.time) || !is_finite(p.speed) || !is_finite(p.rise))
+    return fail(errc::invalid_argument, "the vertical flight leaves the range of T at height", p.rise);
+  return p;
 }
 
 template <Real T>
 [[nodiscard]] result<hodograph_point<T>> vertical_crossing(const T& c, const T& g, const T& v0, bool up,
                                                            const T& rise, side branch, bool apex_only) {
-  using std::atan;
   using std::sqrt;
   const T half_pi = boost::math::constants::half_pi<T>();
-  const T vt = sqrt(T(g / c));
-  const T kappa = c * v0 * v0 / g;  // (v0/vt)^2
-  const T scale = vt / g;           // 1 / sqrt(g c)
+  const T vt = vertical_terminal_speed(c, g);
+  const T a = v0 / vt;
+  const T kappa = a * a;  // c v0^2 / g
   if (!up) {
     if (apex_only || rise == T(0)) return hodograph_point<T>{T(0), T(0), T(0), v0, T(-half_pi)};
     if (rise > T(0)) return fail(errc::never_reaches, "a downward launch never climbs, height", rise);
     if (branch == side::rising)
       return fail(errc::never_reaches, "rising branch starts above that height, by", T(-rise));
     const vertical_drop<T> f = vertical_fall(c, g, v0, T(-rise));
-    return hodograph_point<T>{f.time, T(0), rise, f.speed, T(-half_pi)};
+    return vertical_point(hodograph_point<T>{f.time, T(0), rise, f.speed, T(-half_pi)});
   }
-  const T top = detail::log1p(kappa) / (2 * c);
-  const T t_top = scale * atan(T(v0 / vt));
-  if (apex_only || rise == top) return hodograph_point<T>{t_top, T(0), top, T(0), T(0)};
+  // Apex: height log1p(kappa)/(2c) = v0^2/(2g) log1p(kappa)/kappa after (vt/g) atan(v0/vt)
+  // = (v0/g) atan(a)/a.
+  const T top = T(v0 * v0 / (2 * g)) * detail::log1p_over_x(kappa);
+  const T t_top = T(v0 / g) * atan_over_x(a);
+  if (apex_only || rise == top) return vertical_point(hodograph_point<T>{t_top, T(0), top, T(0), T(0)});
   if (rise > top) return fail(errc::never_reaches, "height is above the apex by", T(rise - top));
   if (branch == side::rising) {
     if (rise < T(0)) return fail(errc::never_reaches, "rising branch starts above that height, by", T(-rise));
     if (rise == T(0)) return hodograph_point<T>{T(0), T(0), T(0), v0, half_pi};
-    // (w/vt)^2 = (1 + kappa) e^(-2 c y) - 1; t = (vt/g)(atan(a) - atan(b)) with a = v0/vt,
-    // b = w/vt, summed as atan((a - b) / (1 + a b)), a^2 - b^2 = -(1 + kappa) expm1(-2 c y).
-    const T b2 = detail::expm1(T(detail::log1p(kappa) - 2 * c * rise));
-    const T b = sqrt(b2 > T(0) ? b2 : T(0));
-    const T a = v0 / vt;
-    const T diff = T(-(T(1) + kappa) * detail::expm1(T(-2 * c * rise))) / T(a + b);
-    return hodograph_point<T>{T(scale * atan(T(diff / (T(1) + a * b)))), T(0), rise, T(b * vt), half_pi};
+    // v0^2 - w^2 = (1 + kappa) vt^2 (1 - e^(-2 c y)) = (1 + kappa) 2 g y (1 - e^-l)/l, l = 2 c y;
+    // t = (vt/g)(atan(a) - atan(b)), b = w/vt, summed as atan(x), x = (a - b) / (1 + a b).
+    const T drop = T(2 * g * rise) * one_minus_exp_over_x(T(2 * c * rise)) * T(T(1) + kappa);
+    const T w2 = v0 * v0 - drop;
+    const T w = sqrt(w2 > T(0) ? w2 : T(0));
+    const T vx = T(drop / T(v0 + w)) / T(T(1) + a * T(w / vt));  // vt x
+    const T x = vx / vt;
+    return vertical_point(hodograph_point<T>{T(T(vx / g) * atan_over_x(x)), T(0), rise, w, half_pi});
   }
   const vertical_drop<T> f = vertical_fall(c, g, T(0), T(top - rise));
-  return hodograph_point<T>{T(t_top + f.time), T(0), rise, f.speed, T(-half_pi)};
+  return vertical_point(hodograph_point<T>{T(t_top + f.time), T(0), rise, f.speed, T(-half_pi)});
 }
 
 template <Real T>
@@ -956,9 +997,8 @@ template <Real T>
 // The point where a quantity that grows along the whole flight (time or horizontal
 // distance) reaches `level` > 0: a search from the launch over apex and descent alike,
 // stopped by `max_time`. (The distance tends to a finite limit as the descent turns
-// vertical; a distance beyond it is "not reached by max_time": a cheap test that it is
-// beyond the limit would need a bound on the rest of the descent, which a body still far
-// below its terminal speed does not give.)
+// vertical; a distance beyond it is `never_reaches` when the search gets to the end of the
+// quadrature's reach first, `time_limit` when max_time comes first.)
 template <Real T>
 [[nodiscard]] result<hodograph_point<T>> hodograph_search_growing(const T& c, const T& g, const T& v0,
                                                                   const T& theta0, const T& level,
@@ -971,9 +1011,9 @@ template <Real T>
 /// Where a flight under a = g - c |v| v in still air first reaches the horizontal distance
 /// `distance` [m] > 0 from its launch point. Inputs as for `hodograph_apex`; `max_time`
 /// [s] bounds the search.
-/// Errors: `invalid_argument` for bad inputs; `never_reaches` for a vertical launch;
-/// `time_limit` when the distance is not reached by `max_time` (also when it lies beyond
-/// the horizontal limit of the descent); `no_convergence` if an iteration hits its cap.
+/// Errors: `invalid_argument` for bad inputs; `never_reaches` for a vertical launch or a
+/// distance beyond the horizontal limit of the descent; `time_limit` when the distance is
+/// not reached by `max_time`; `no_convergence` if an iteration hits its cap.
 template <Real T>
 [[nodiscard]] result<hodograph_point<T>> hodograph_at_distance(const T& c, const T& g, const T& v0,
                                                                const T& theta0, const T& distance,

@@ -70,6 +70,13 @@ class integrated_flight {
     if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
     if (!is_finite(launch.position)) return fail(errc::invalid_argument, "launch position must be finite");
     if (!is_finite(launch.velocity)) return fail(errc::invalid_argument, "launch velocity must be finite");
+    if (const status sq = detail::check_squares(air, launch); !sq) return unexpected<error>(sq.error());
+    // The drag at the launch must be a number: a coefficient near the top of T's range
+    // times the launch air speed overflows, and the integration would carry inf and NaN.
+    const vec3<T> air_velocity = launch.velocity - air.wind;
+    if (!is_finite(vec3<T>(model.acceleration(air_velocity))))
+      return fail(errc::invalid_argument, "the drag at the launch air velocity overflows T; air speed",
+                  scaled_norm(air_velocity));
     const status opt = check_options(options);
     if (!opt) return unexpected<error>(opt.error());
     return integrated_flight(model, air, launch, options);
@@ -186,28 +193,35 @@ class integrated_flight {
 
   /// Horizontal distance from the launch point to the landing at `height` [m].
   [[nodiscard]] result<T> range(const T& height = T(0)) const {
-    const result<state<T>> s = landing(height);
+    // From the displacement itself: the same flight with its launch at the origin (heights
+    // stay absolute through h0_), so that a launch point near the top of T's range does
+    // not round the range away in landing position - launch position.
+    integrated_flight local = *this;
+    local.launch_.position = vec3<T>::Zero();
+    const result<state<T>> s = local.landing(height);
     if (!s) return unexpected<error>(s.error());
-    return horizontal_distance(s->position);
+    return level_distance(s->position);
   }
 
   /// The first state whose horizontal distance from the launch point reaches `distance`
   /// [m] (the flight continues below the landing plane). Errors: `invalid_argument` for a
-  /// negative or non-finite distance; `time_limit` when it is not reached by max_time;
-  /// `step_limit`.
+  /// negative or non-finite distance; `never_reaches` when the flight provably stops short
+  /// of it (a vertical launch, or the limit of the descent on the hodograph path and for
+  /// models with a linear drag part in air without side wind, as the closed forms say);
+  /// `time_limit` when it is not reached by max_time; `step_limit`.
   [[nodiscard]] result<state<T>> at_distance(const T& distance) const {
     if (!is_finite(distance) || distance < T(0))
       return fail(errc::invalid_argument, "distance must be finite and >= 0", distance);
     if (distance == T(0)) return make_state(T(0), y0_);
     if constexpr (model_traits<M>::quadratic_fast_path) {
-      if (fast_ && !detail::hodograph_vertical(theta0_)) return fast_at_distance(distance);
+      if (fast_) return fast_at_distance(distance);  // a vertical launch: never_reaches
     }
     result<state<T>> out = fail(errc::no_convergence, "distance was not reached");
     const status walked = walk([&](const auto& p) {
       const auto f = [&](const T& s) { return T(level_distance(p.position_at(s)) - distance); };
       const T fa = f(p.t0);
       const T fb = f(p.t1);
-      if (!(fa < T(0) && fb >= T(0))) return false;
+      if (!(fa < T(0) && fb >= T(0))) return short_of(p.y1, distance, out);
       out = located(f, p, fa, fb);
       return true;
     });
@@ -310,6 +324,7 @@ class integrated_flight {
     g_ = sqrt(T(air.gravity.squaredNorm()));
     up_ = g_ > T(0) ? vec3<T>(-air.gravity / g_) : vec3<T>(vec3<T>::Zero());
     w_up_ = up_.dot(air.wind);
+    wind_level_ = level_distance(air.wind);
     climb0_ = up_.dot(launch.velocity);
     h0_ = up_.dot(launch.position);
     // Positions are integrated relative to the launch point: the error control and the
@@ -411,6 +426,34 @@ class integrated_flight {
     return T((r.first + r.second) / 2);
   }
 
+  // Whether the body provably stops short of `distance` after the phase y (then `out`
+  // says never_reaches): for models whose drag per air speed is at least a known rate k
+  // (`model_traits<M>::least_rate`), in air without horizontal wind the horizontal
+  // velocity shrinks at least like e^-kt along a fixed direction, so at most |u|/k more
+  // distance is covered. Other models and side winds search until max_time.
+  [[nodiscard]] bool short_of(const detail::phase<T>& y, const T& distance, result<state<T>>& out) const {
+    if constexpr (requires(const M& m) {
+                    { model_traits<M>::least_rate(m) } -> std::convertible_to<T>;
+                  }) {
+      const T k = model_traits<M>::least_rate(model_);
+      if (!(k > T(0)) || wind_level_ != T(0)) return false;
+      const T limit = level_distance(y.position) + level_distance(y.velocity) / k;
+      if (!(limit < distance)) return false;
+      out = fail(errc::never_reaches, "drag stops the body short of that distance; limit at most", limit);
+      return true;
+    } else {
+      (void)y, (void)distance, (void)out;
+      return false;
+    }
+  }
+
+  // Takes n steps from the solver's shared pool, if there is one.
+  [[nodiscard]] status draw_shared(std::int64_t n) const {
+    if (options_.shared_steps && !options_.shared_steps->draw(n))
+      return fail(errc::step_limit, "the solver used its whole step budget (solve_options::max_total_steps)");
+    return {};
+  }
+
   // Walks the flight from the launch, calling visit(piece) for each step (split at the
   // apex) until it returns true. Errors: step_limit, time_limit, no_convergence.
   template <class Visit>
@@ -447,6 +490,7 @@ class integrated_flight {
         return fail(errc::time_limit, "the event was not reached within max_time =", options_.max_time);
       if (n >= options_.max_steps)
         return fail(errc::step_limit, "integration used its whole step budget (max_steps) at t =", t);
+      if (const status d = draw_shared(1); !d) return d;
       const T err = detail::dp5_step(f, y, fy, h, y1, k, rtol_, atol_);
       if (!(err <= T(1))) {  // rejected (or not finite: retry smaller)
         h = control.next(h, is_finite(err) ? err : T(1000000), false);
@@ -538,9 +582,15 @@ class integrated_flight {
         return fail(errc::time_limit, "the event was not reached within max_time =", options_.max_time);
       if (n >= options_.max_steps)
         return fail(errc::step_limit, "integration used its whole step budget (max_steps) at t =", t0);
+      if (const status d = draw_shared(1); !d) return d;
       const T t1 = T(n + 1) * h;
       const detail::phase<T> y1 =
           rk4 ? detail::rk4_step(f, y, fy, h) : detail::semi_implicit_euler_step(y, fy, h);
+      // A fixed step has no error control: too long a step for a strong drag overshoots
+      // and the state grows without bound, which must end as an error, not as inf or NaN.
+      if (!is_finite(y1.position) || !is_finite(y1.velocity))
+        return fail(errc::no_convergence,
+                    "the fixed step is unstable for this drag: the state overflows at t =", t0);
       const detail::phase<T> f1 = detail::derivative(f, y1);
       const detail::hermite_piece<T> curve(t0, h, y, fy, y1, f1);
       if (before_apex && !(T(up_.dot(y1.velocity)) > T(0))) {
@@ -609,25 +659,28 @@ class integrated_flight {
   // The hodograph fast path (quadratic drag in still air, integrate/hodograph.hpp): its
   // answers are relative to the launch in the vertical plane of the launch velocity, so
   // they are turned back into a 3-D state along that plane's level direction and "up".
+  // Each answer passes through fast_result: an event after max_time is time_limit, as on
+  // the integrated path.
   [[nodiscard]] result<state<T>> fast_apex() const {
-    const result<detail::hodograph_point<T>> p = detail::hodograph_apex(c_, g_, v0_, theta0_);
-    if (!p) return unexpected<error>(p.error());
-    return from_hodograph(*p);
+    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    return fast_result(detail::hodograph_apex(c_, g_, v0_, theta0_));
   }
   [[nodiscard]] result<state<T>> fast_crossing(const T& dh, side branch) const {
-    const result<detail::hodograph_point<T>> p = detail::hodograph_crossing(c_, g_, v0_, theta0_, dh, branch);
-    if (!p) return unexpected<error>(p.error());
-    return from_hodograph(*p);
+    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    return fast_result(detail::hodograph_crossing(c_, g_, v0_, theta0_, dh, branch));
   }
   [[nodiscard]] result<state<T>> fast_at(const T& t) const {
-    const result<detail::hodograph_point<T>> p = detail::hodograph_at_time(c_, g_, v0_, theta0_, t);
-    if (!p) return unexpected<error>(p.error());
-    return from_hodograph(*p);
+    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    return fast_result(detail::hodograph_at_time(c_, g_, v0_, theta0_, t));
   }
   [[nodiscard]] result<state<T>> fast_at_distance(const T& distance) const {
-    const result<detail::hodograph_point<T>> p =
-        detail::hodograph_at_distance(c_, g_, v0_, theta0_, distance, T(options_.max_time));
+    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    return fast_result(detail::hodograph_at_distance(c_, g_, v0_, theta0_, distance, T(options_.max_time)));
+  }
+  [[nodiscard]] result<state<T>> fast_result(const result<detail::hodograph_point<T>>& p) const {
     if (!p) return unexpected<error>(p.error());
+    if (p->time > options_.max_time)
+      return fail(errc::time_limit, "the event lies beyond max_time, at t =", p->time);
     return from_hodograph(*p);
   }
   [[nodiscard]] state<T> from_hodograph(const detail::hodograph_point<T>& p) const {
@@ -648,6 +701,7 @@ class integrated_flight {
   T g_{};
   vec3<T> up_;
   T w_up_{};     // wind along up
+  T wind_level_{};  // horizontal wind speed
   T climb0_{};   // vertical launch velocity
   T h0_{};       // launch height
   T rtol_{};

@@ -3,6 +3,7 @@
 /// `linear_drag`: drag proportional to the air velocity, a = -rate * v_air (closed form).
 /// Stokes drag on small or slow bodies; see physics/ for the rate from viscosity.
 
+#include "lob/core/checks.hpp"
 #include "lob/core/units.hpp"
 #include "lob/models/traits.hpp"
 
@@ -25,11 +26,17 @@ struct linear_drag {
   /// `g` [m/s^2]: k = g / v_t.
   [[nodiscard]] static result<linear_drag> from_terminal_speed(const T& terminal_speed,
                                                                const T& g = standard_gravity<T>()) {
-    if (!is_finite(terminal_speed) || !(terminal_speed > T(0)))
-      return fail(errc::invalid_argument, "terminal speed must be finite and > 0", terminal_speed);
-    if (!is_finite(g) || !(g > T(0)))
-      return fail(errc::invalid_argument, "gravity must be finite and > 0", g);
-    return linear_drag{g / terminal_speed};
+    if (const status ok =
+            first_failure(require_positive(terminal_speed, "terminal speed must be finite and > 0"),
+                          require_positive(g, "gravity must be finite and > 0"));
+        !ok)
+      return unexpected<error>(ok.error());
+    const T rate = g / terminal_speed;
+    if (const status ok =
+            require_representable(rate, "the drag rate g / terminal speed leaves T's range", true);
+        !ok)
+      return unexpected<error>(ok.error());
+    return linear_drag{rate};
   }
 };
 

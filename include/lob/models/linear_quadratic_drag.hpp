@@ -4,10 +4,10 @@
 /// a = -(k + c |v_air|) v_air, the usual way to span the Stokes (slow, small) and Newton
 /// (fast, large) regimes with one model. Integrated by lob::fly().
 
+#include <boost/math/constants/constants.hpp>
 #include <limits>
 
-#include <boost/math/constants/constants.hpp>
-
+#include "lob/core/checks.hpp"
 #include "lob/core/result.hpp"
 #include "lob/core/units.hpp"
 #include "lob/models/linear_drag.hpp"
@@ -59,34 +59,47 @@ struct linear_quadratic_drag {
                                                                  const T& air_density,
                                                                  const T& newton_drag_coefficient) {
     const T pi = boost::math::constants::pi<T>();
-    if (!is_finite(mass) || !(mass > T(0)))
-      return fail(errc::invalid_argument, "mass must be finite and > 0", mass);
-    if (!is_finite(diameter) || diameter < T(0))
-      return fail(errc::invalid_argument, "diameter must be finite and >= 0", diameter);
-    if (!is_finite(dynamic_viscosity) || dynamic_viscosity < T(0))
-      return fail(errc::invalid_argument, "dynamic viscosity must be finite and >= 0", dynamic_viscosity);
-    if (!is_finite(air_density) || air_density < T(0))
-      return fail(errc::invalid_argument, "air density must be finite and >= 0", air_density);
-    if (!is_finite(newton_drag_coefficient) || newton_drag_coefficient < T(0))
-      return fail(errc::invalid_argument, "drag coefficient must be finite and >= 0",
-                  newton_drag_coefficient);
-    const T area = pi * diameter * diameter / 4;
-    return linear_quadratic_drag{T(3 * pi * dynamic_viscosity * diameter / mass),
-                                 T(air_density * newton_drag_coefficient * area / (2 * mass))};
+    if (const status ok = first_failure(
+            require_positive(mass, "mass must be finite and > 0"),
+            require_non_negative(diameter, "diameter must be finite and >= 0"),
+            require_non_negative(dynamic_viscosity, "dynamic viscosity must be finite and >= 0"),
+            require_non_negative(air_density, "air density must be finite and >= 0"),
+            require_non_negative(newton_drag_coefficient, "drag coefficient must be finite and >= 0"));
+        !ok)
+      return unexpected<error>(ok.error());
+    const T rate = T(T(3 * pi * dynamic_viscosity) / mass) * diameter;
+    const T coefficient =
+        T(T(T(air_density * newton_drag_coefficient) * (pi / 4)) / (2 * mass)) * diameter * diameter;
+    const bool has_diameter = diameter > T(0);
+    if (const status ok = first_failure(
+            require_representable(rate, "the Stokes rate 3 pi mu d / m leaves T's range",
+                                  has_diameter && dynamic_viscosity > T(0)),
+            require_representable(coefficient, "the coefficient rho C_d A / (2 m) leaves T's range",
+                                  has_diameter && air_density > T(0) && newton_drag_coefficient > T(0)));
+        !ok)
+      return unexpected<error>(ok.error());
+    return linear_quadratic_drag{rate, coefficient};
   }
 
   /// The model from the two force coefficients of F = b v + q v^2 on a body of `mass` [kg]:
   /// `linear_force` b [N s/m] and `quadratic_force` q [N s^2/m^2]; k = b / m, c = q / m.
   [[nodiscard]] static result<linear_quadratic_drag> from_forces(const T& mass, const T& linear_force,
                                                                  const T& quadratic_force) {
-    if (!is_finite(mass) || !(mass > T(0)))
-      return fail(errc::invalid_argument, "mass must be finite and > 0", mass);
-    if (!is_finite(linear_force) || linear_force < T(0))
-      return fail(errc::invalid_argument, "linear force coefficient must be finite and >= 0", linear_force);
-    if (!is_finite(quadratic_force) || quadratic_force < T(0))
-      return fail(errc::invalid_argument, "quadratic force coefficient must be finite and >= 0",
-                  quadratic_force);
-    return linear_quadratic_drag{T(linear_force / mass), T(quadratic_force / mass)};
+    if (const status ok = first_failure(
+            require_positive(mass, "mass must be finite and > 0"),
+            require_non_negative(linear_force, "linear force coefficient must be finite and >= 0"),
+            require_non_negative(quadratic_force, "quadratic force coefficient must be finite and >= 0"));
+        !ok)
+      return unexpected<error>(ok.error());
+    const T rate = linear_force / mass;
+    const T coefficient = quadratic_force / mass;
+    if (const status ok =
+            first_failure(require_representable(rate, "the rate b / m leaves T's range", linear_force > T(0)),
+                          require_representable(coefficient, "the coefficient q / m leaves T's range",
+                                                quadratic_force > T(0)));
+        !ok)
+      return unexpected<error>(ok.error());
+    return linear_quadratic_drag{rate, coefficient};
   }
 };
 
@@ -95,6 +108,8 @@ struct model_traits<linear_quadratic_drag<T>> {
   using scalar = T;
   static constexpr bool closed_form = false;
   static constexpr bool quadratic_fast_path = false;
+  /// A lower bound on the drag per air speed [1/s]: k + c |v_air| >= k.
+  static T least_rate(const linear_quadratic_drag<T>& m) { return m.rate; }
 };
 
 }  // namespace lob

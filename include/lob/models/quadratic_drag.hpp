@@ -3,10 +3,11 @@
 /// `quadratic_drag`: drag proportional to the square of the air speed,
 /// a = -c |v_air| v_air (Newton drag; no closed form in 2-D, integrated by lob::fly()).
 
-#include "lob/core/result.hpp"
-#include "lob/core/units.hpp"
 #include <limits>
 
+#include "lob/core/checks.hpp"
+#include "lob/core/result.hpp"
+#include "lob/core/units.hpp"
 #include "lob/models/traits.hpp"
 
 namespace lob {
@@ -46,11 +47,18 @@ struct quadratic_drag {
   /// `g` [m/s^2]: c = g / v_t^2.
   [[nodiscard]] static result<quadratic_drag> from_terminal_speed(const T& terminal_speed,
                                                                   const T& g = standard_gravity<T>()) {
-    if (!is_finite(terminal_speed) || !(terminal_speed > T(0)))
-      return fail(errc::invalid_argument, "terminal speed must be finite and > 0", terminal_speed);
-    if (!is_finite(g) || !(g > T(0)))
-      return fail(errc::invalid_argument, "gravity must be finite and > 0", g);
-    return quadratic_drag{T(g / (terminal_speed * terminal_speed))};
+    if (const status ok =
+            first_failure(require_positive(terminal_speed, "terminal speed must be finite and > 0"),
+                          require_positive(g, "gravity must be finite and > 0"));
+        !ok)
+      return unexpected<error>(ok.error());
+    // g / v_t / v_t: no overflow of v_t^2 on the way.
+    const T c = T(g / terminal_speed) / terminal_speed;
+    if (const status ok =
+            require_representable(c, "the coefficient g / terminal speed^2 leaves T's range", true);
+        !ok)
+      return unexpected<error>(ok.error());
+    return quadratic_drag{c};
   }
 
   /// The model of a body of `mass` [kg] with `reference_area` [m^2] (the frontal area for
@@ -59,15 +67,21 @@ struct quadratic_drag {
   [[nodiscard]] static result<quadratic_drag> from_body(const T& mass, const T& reference_area,
                                                         const T& drag_coefficient,
                                                         const T& air_density) {
-    if (!is_finite(mass) || !(mass > T(0)))
-      return fail(errc::invalid_argument, "mass must be finite and > 0", mass);
-    if (!is_finite(reference_area) || reference_area < T(0))
-      return fail(errc::invalid_argument, "reference area must be finite and >= 0", reference_area);
-    if (!is_finite(drag_coefficient) || drag_coefficient < T(0))
-      return fail(errc::invalid_argument, "drag coefficient must be finite and >= 0", drag_coefficient);
-    if (!is_finite(air_density) || air_density < T(0))
-      return fail(errc::invalid_argument, "air density must be finite and >= 0", air_density);
-    return quadratic_drag{T(air_density * drag_coefficient * reference_area / (2 * mass))};
+    if (const status ok =
+            first_failure(require_positive(mass, "mass must be finite and > 0"),
+                          require_non_negative(reference_area, "reference area must be finite and >= 0"),
+                          require_non_negative(drag_coefficient, "drag coefficient must be finite and >= 0"),
+                          require_non_negative(air_density, "air density must be finite and >= 0"));
+        !ok)
+      return unexpected<error>(ok.error());
+    // Divided before the last product, so that large inputs overflow only when the answer does.
+    const T c = T(T(air_density * drag_coefficient) / (2 * mass)) * reference_area;
+    const bool positive = reference_area > T(0) && drag_coefficient > T(0) && air_density > T(0);
+    if (const status ok =
+            require_representable(c, "the coefficient rho C_d A / (2 m) leaves T's range", positive);
+        !ok)
+      return unexpected<error>(ok.error());
+    return quadratic_drag{c};
   }
 };
 

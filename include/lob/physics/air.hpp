@@ -51,8 +51,9 @@ namespace detail {
 template <Real T>
 [[nodiscard]] status check_temperature(const T& temperature) {
   // 1 K .. 2000 K: Sutherland's law and the ideal gas are used far inside this.
-  if (!is_finite(temperature) || !(temperature > T(0)) || temperature > T(2000))
-    return fail(errc::invalid_argument, "air temperature must be in (0, 2000] K", temperature);
+  // Below 1 K, T^(3/2) of Sutherland's law underflows for tiny inputs (1e-300 K gave 0).
+  if (!is_finite(temperature) || !(temperature >= T(1)) || temperature > T(2000))
+    return fail(errc::invalid_argument, "air temperature must be in [1, 2000] K", temperature);
   return {};
 }
 template <Real T>

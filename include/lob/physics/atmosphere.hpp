@@ -6,8 +6,10 @@
 /// conversions between geometric and geopotential altitude, gravity versus altitude, and
 /// the air at a site from its altitude, temperature and humidity.
 
+#include <limits>
 #include <optional>
 
+#include "lob/core/checks.hpp"
 #include "lob/core/units.hpp"
 #include "lob/physics/air.hpp"
 
@@ -56,6 +58,8 @@ template <Real T>
   const T r0 = detail::earth_radius<T>();
   if (!is_finite(geometric) || !(geometric > -r0 / 2))
     return fail(errc::invalid_argument, "geometric altitude must be finite and > -r0/2 [m]", geometric);
+  // r0 / (r0/z + 1) above r0, where r0 z would overflow for z near the top of T's range.
+  if (geometric > r0) return T(r0 / (r0 / geometric + T(1)));
   return T(r0 * geometric / (r0 + geometric));
 }
 
@@ -71,14 +75,19 @@ template <Real T>
 }
 
 /// Acceleration of gravity [m/s^2] at geometric altitude z [m]: g0 (r0 / (r0 + z))^2, the
-/// inverse-square law of the 1976 standard (eq. 17), g0 = 9.80665 m/s^2.
+/// inverse-square law of the 1976 standard (eq. 17), g0 = 9.80665 m/s^2. Errors:
+/// `invalid_argument` for z not finite or <= -r0/2, or so high that g underflows T.
 template <Real T>
 [[nodiscard]] result<T> gravity_at_altitude(const T& geometric) {
   const T r0 = detail::earth_radius<T>();
   if (!is_finite(geometric) || !(geometric > -r0 / 2))
     return fail(errc::invalid_argument, "geometric altitude must be finite and > -r0/2 [m]", geometric);
   const T ratio = r0 / (r0 + geometric);
-  return T(standard_gravity<T>() * ratio * ratio);
+  const T g = standard_gravity<T>() * ratio * ratio;
+  // Far enough out (about 1e150 m in double) the square underflows: an error, not g = 0.
+  if (!(g >= std::numeric_limits<T>::min()))
+    return fail(errc::invalid_argument, "gravity underflows T at geometric altitude [m]", geometric);
+  return g;
 }
 
 /// The U.S. Standard Atmosphere 1976 at geopotential altitude `altitude` [m'], in
@@ -166,8 +175,9 @@ template <Real T>
   if (!standard) return unexpected<error>(standard.error());
   T offset = T(0);
   if (where.temperature) {
-    if (!is_finite(*where.temperature) || !(*where.temperature > T(0)))
-      return fail(errc::invalid_argument, "site temperature must be finite and > 0 [K]", *where.temperature);
+    if (const status ok = require_positive(*where.temperature, "site temperature must be finite and > 0 [K]");
+        !ok)
+      return unexpected<error>(ok.error());
     offset = *where.temperature - standard->temperature;
   }
   const result<atmosphere_state<T>> day = standard_atmosphere(*h, offset);

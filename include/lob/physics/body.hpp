@@ -6,6 +6,7 @@
 
 #include <boost/math/constants/constants.hpp>
 
+#include "lob/core/checks.hpp"
 #include "lob/core/flight_types.hpp"
 #include "lob/core/result.hpp"
 #include "lob/physics/air.hpp"
@@ -19,10 +20,10 @@ struct sphere {
   T diameter{};
 
   [[nodiscard]] status check() const {
-    if (!is_finite(mass) || !(mass > T(0)))
-      return fail(errc::invalid_argument, "sphere mass must be finite and > 0 [kg]", mass);
-    if (!is_finite(diameter) || !(diameter > T(0)))
-      return fail(errc::invalid_argument, "sphere diameter must be finite and > 0 [m]", diameter);
+    if (const status ok = require_positive(mass, "sphere mass must be finite and > 0 [kg]"); !ok)
+      return unexpected<error>(ok.error());
+    if (const status ok = require_positive(diameter, "sphere diameter must be finite and > 0 [m]"); !ok)
+      return unexpected<error>(ok.error());
     return {};
   }
   /// Frontal (cross-section) area pi d^2 / 4 [m^2].
@@ -47,17 +48,20 @@ struct body {
   T volume{};
 
   [[nodiscard]] status check() const {
-    if (!is_finite(mass) || !(mass > T(0)))
-      return fail(errc::invalid_argument, "body mass must be finite and > 0 [kg]", mass);
-    if (!is_finite(reference_area) || !(reference_area > T(0)))
-      return fail(errc::invalid_argument, "body reference area must be finite and > 0 [m^2]", reference_area);
-    if (!is_finite(drag_coefficient) || !(drag_coefficient > T(0)))
-      return fail(errc::invalid_argument, "body drag coefficient must be finite and > 0", drag_coefficient);
+    if (const status ok = require_positive(mass, "body mass must be finite and > 0 [kg]"); !ok)
+      return unexpected<error>(ok.error());
+    if (const status ok =
+            require_positive(reference_area, "body reference area must be finite and > 0 [m^2]");
+        !ok)
+      return unexpected<error>(ok.error());
+    if (const status ok = require_positive(drag_coefficient, "body drag coefficient must be finite and > 0");
+        !ok)
+      return unexpected<error>(ok.error());
     if (!is_finite(reference_length) || reference_length < T(0))
       return fail(errc::invalid_argument, "body reference length must be finite and >= 0 [m]",
                   reference_length);
-    if (!is_finite(volume) || volume < T(0))
-      return fail(errc::invalid_argument, "body volume must be finite and >= 0 [m^3]", volume);
+    if (const status ok = require_non_negative(volume, "body volume must be finite and >= 0 [m^3]"); !ok)
+      return unexpected<error>(ok.error());
     return {};
   }
   /// The length its Reynolds number uses [m].
@@ -71,12 +75,15 @@ struct body {
 namespace detail {
 template <Real T>
 [[nodiscard]] status check_air(const air_properties<T>& air) {
-  if (!is_finite(air.density) || !(air.density > T(0)))
-    return fail(errc::invalid_argument, "air density must be finite and > 0 [kg/m^3]", air.density);
-  if (!is_finite(air.dynamic_viscosity) || !(air.dynamic_viscosity > T(0)))
-    return fail(errc::invalid_argument, "air viscosity must be finite and > 0 [Pa s]", air.dynamic_viscosity);
-  if (!is_finite(air.speed_of_sound) || !(air.speed_of_sound > T(0)))
-    return fail(errc::invalid_argument, "speed of sound must be finite and > 0 [m/s]", air.speed_of_sound);
+  if (const status ok = require_positive(air.density, "air density must be finite and > 0 [kg/m^3]"); !ok)
+    return unexpected<error>(ok.error());
+  if (const status ok =
+          require_positive(air.dynamic_viscosity, "air viscosity must be finite and > 0 [Pa s]");
+      !ok)
+    return unexpected<error>(ok.error());
+  if (const status ok = require_positive(air.speed_of_sound, "speed of sound must be finite and > 0 [m/s]");
+      !ok)
+    return unexpected<error>(ok.error());
   return {};
 }
 }  // namespace detail
@@ -86,19 +93,22 @@ template <Real T>
 template <Real T>
 [[nodiscard]] result<T> reynolds_number(const T& speed, const T& length, const air_properties<T>& air) {
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
-  if (!is_finite(speed) || speed < T(0))
-    return fail(errc::invalid_argument, "speed must be finite and >= 0 [m/s]", speed);
-  if (!is_finite(length) || !(length > T(0)))
-    return fail(errc::invalid_argument, "length must be finite and > 0 [m]", length);
-  return T(air.density * speed * length / air.dynamic_viscosity);
+  if (const status ok = require_non_negative(speed, "speed must be finite and >= 0 [m/s]"); !ok)
+    return unexpected<error>(ok.error());
+  if (const status ok = require_positive(length, "length must be finite and > 0 [m]"); !ok)
+    return unexpected<error>(ok.error());
+  const T re = T(air.density * speed / air.dynamic_viscosity) * length;
+  if (const status ok = require_representable(re, "the Reynolds number overflows T; speed [m/s]"); !ok)
+    return fail(errc::invalid_argument, "the Reynolds number overflows T; speed [m/s]", speed);
+  return re;
 }
 
 /// Mach number v / a of `speed` [m/s] in `air`.
 template <Real T>
 [[nodiscard]] result<T> mach_number(const T& speed, const air_properties<T>& air) {
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
-  if (!is_finite(speed) || speed < T(0))
-    return fail(errc::invalid_argument, "speed must be finite and >= 0 [m/s]", speed);
+  if (const status ok = require_non_negative(speed, "speed must be finite and >= 0 [m/s]"); !ok)
+    return unexpected<error>(ok.error());
   return T(speed / air.speed_of_sound);
 }
 

@@ -14,19 +14,19 @@
 /// algebra runs in long double (see detail::lm_scalar), which bounds the fit's precision
 /// at about 1e-19 relative, far below any measurement noise.
 
+#include <Eigen/Dense>
 #include <algorithm>
-#include <cstddef>
 #include <cmath>
+#include <cstddef>
 #include <cstdint>
 #include <limits>
 #include <span>
 #include <type_traits>
+#include <unsupported/Eigen/LevenbergMarquardt>
 #include <utility>
 #include <vector>
 
-#include <Eigen/Dense>
-#include <unsupported/Eigen/LevenbergMarquardt>
-
+#include "lob/core/checks.hpp"
 #include "lob/core/flight_types.hpp"
 #include "lob/core/options.hpp"
 #include "lob/core/result.hpp"
@@ -241,8 +241,8 @@ template <Real T, class MakeModel>
   using std::sqrt;
   using model_type = std::remove_cvref_t<decltype(make(initial))>;
   static_assert(DragModel<model_type>, "make(p) must return a lob::DragModel");
-  if (!is_finite(initial) || !(initial > T(0)))
-    return fail(errc::invalid_argument, "initial drag parameter must be finite and > 0", initial);
+  if (const status ok = require_positive(initial, "initial drag parameter must be finite and > 0"); !ok)
+    return unexpected<error>(ok.error());
   if (flights.empty()) return fail(errc::too_few_samples, "calibration needs at least one flight");
   if (options.max_evaluations < 1)
     return fail(errc::invalid_argument, "max_evaluations must be >= 1", options.max_evaluations);
@@ -256,8 +256,8 @@ template <Real T, class MakeModel>
     if (options.fit_elevation && !(T(horizontal(f.launch.velocity, air).squaredNorm()) > T(0)))
       return fail(errc::invalid_argument, "fitting the elevation needs a launch with a horizontal direction");
     for (const sample<T>& s : f.samples) {
-      if (!is_finite(s.time) || s.time < T(0))
-        return fail(errc::invalid_argument, "sample time must be finite and >= 0 [s]", s.time);
+      if (const status ok = require_non_negative(s.time, "sample time must be finite and >= 0 [s]"); !ok)
+        return unexpected<error>(ok.error());
       if (!is_finite(s.position)) return fail(errc::invalid_argument, "sample position must be finite");
     }
     count += f.samples.size();

@@ -6,11 +6,11 @@
 /// accurate enough, with the reason.
 
 #include <array>
+#include <boost/math/tools/minima.hpp>
 #include <cstdint>
 #include <cstdio>
 
-#include <boost/math/tools/minima.hpp>
-
+#include "lob/core/checks.hpp"
 #include "lob/models/linear_drag.hpp"
 #include "lob/models/linear_quadratic_drag.hpp"
 #include "lob/models/quadratic_drag.hpp"
@@ -34,8 +34,8 @@ template <Real T>
                                                             const air_properties<T>& air, const T& cd) {
   if (const status ok = ball.check(); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
-  if (!is_finite(cd) || !(cd > T(0)))
-    return fail(errc::invalid_argument, "drag coefficient must be finite and > 0", cd);
+  if (const status ok = require_positive(cd, "drag coefficient must be finite and > 0"); !ok)
+    return unexpected<error>(ok.error());
   return quadratic_drag<T>{T(air.density * cd * ball.area() / (T(2) * ball.mass))};
 }
 
@@ -58,8 +58,8 @@ template <Real T>
                                                                           const T& cq) {
   const result<T> k = stokes_rate(ball, air);
   if (!k) return unexpected<error>(k.error());
-  if (!is_finite(cq) || cq < T(0))
-    return fail(errc::invalid_argument, "inertial drag coefficient must be finite and >= 0", cq);
+  if (const status ok = require_non_negative(cq, "inertial drag coefficient must be finite and >= 0"); !ok)
+    return unexpected<error>(ok.error());
   return linear_quadratic_drag<T>{*k, T(air.density * cq * ball.area() / (T(2) * ball.mass))};
 }
 
@@ -128,14 +128,14 @@ template <Real T>
   using std::abs;
   const result<correlated_drag<T>> exact = make_correlated_drag(ball, air, options.correlation);
   if (!exact) return unexpected<error>(exact.error());
-  if (!is_finite(speed_min) || speed_min < T(0))
-    return fail(errc::invalid_argument, "lowest speed must be finite and >= 0 [m/s]", speed_min);
+  if (const status ok = require_non_negative(speed_min, "lowest speed must be finite and >= 0 [m/s]"); !ok)
+    return unexpected<error>(ok.error());
   if (!is_finite(speed_max) || !(speed_max > speed_min))
     return fail(errc::invalid_argument, "top speed must be finite and above the lowest [m/s]", speed_max);
-  if (!is_finite(options.tolerance) || !(options.tolerance > T(0)))
-    return fail(errc::invalid_argument, "tolerance must be finite and > 0", options.tolerance);
-  if (!is_finite(options.gravity) || !(options.gravity > T(0)))
-    return fail(errc::invalid_argument, "gravity must be finite and > 0 [m/s^2]", options.gravity);
+  if (const status ok = require_positive(options.tolerance, "tolerance must be finite and > 0"); !ok)
+    return unexpected<error>(ok.error());
+  if (const status ok = require_positive(options.gravity, "gravity must be finite and > 0 [m/s^2]"); !ok)
+    return unexpected<error>(ok.error());
   const correlation_info about = info(options.correlation);
   const T rps = exact->reynolds_per_speed;
   const T vr = exact->viscous_rate;

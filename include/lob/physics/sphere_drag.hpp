@@ -23,6 +23,7 @@
 
 #include <string_view>
 
+#include "lob/core/checks.hpp"
 #include "lob/core/real.hpp"
 #include "lob/core/result.hpp"
 #include "lob/physics/air.hpp"
@@ -115,11 +116,15 @@ template <Real T>
 template <Real T>
 [[nodiscard]] result<T> sphere_drag_coefficient(
     const T& reynolds, sphere_correlation c = sphere_correlation::clift_gauvin_1970) {
-  if (!is_finite(reynolds) || !(reynolds > T(0)))
-    return fail(errc::invalid_argument, "Reynolds number must be finite and > 0", reynolds);
+  if (const status ok = require_positive(reynolds, "Reynolds number must be finite and > 0"); !ok)
+    return unexpected<error>(ok.error());
   if (reynolds > T(info(c).max_reynolds))
     return fail(errc::invalid_argument, "Reynolds number is above the correlation's range", reynolds);
-  return T(detail::cd_times_re(reynolds, c) / reynolds);
+  const T cd = detail::cd_times_re(reynolds, c) / reynolds;
+  // Cd ~ 24/Re overflows T for Re near the smallest denormals.
+  if (!is_finite(cd))
+    return fail(errc::invalid_argument, "the drag coefficient overflows T at Reynolds number", reynolds);
+  return cd;
 }
 
 /// The Stokes drag rate k = 3 pi mu d / m [1/s] of a small sphere in `air`: the linear-drag

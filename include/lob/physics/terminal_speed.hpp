@@ -3,11 +3,11 @@
 /// Terminal speed of a sphere in given air, solved consistently with a Reynolds-dependent
 /// drag coefficient; and of a general body with a constant drag coefficient.
 
+#include <boost/math/tools/toms748_solve.hpp>
 #include <cstdint>
 #include <utility>
 
-#include <boost/math/tools/toms748_solve.hpp>
-
+#include "lob/core/checks.hpp"
 #include "lob/core/units.hpp"
 #include "lob/detail/math.hpp"
 #include "lob/physics/sphere_drag.hpp"
@@ -27,8 +27,8 @@ struct terminal_state {
 namespace detail {
 template <Real T>
 [[nodiscard]] result<T> net_weight(const T& mass, const T& volume, const T& density, const T& g) {
-  if (!is_finite(g) || !(g > T(0)))
-    return fail(errc::invalid_argument, "gravity must be finite and > 0 [m/s^2]", g);
+  if (const status ok = require_positive(g, "gravity must be finite and > 0 [m/s^2]"); !ok)
+    return unexpected<error>(ok.error());
   const T w = (mass - density * volume) * g;
   if (!(w > T(0)))
     return fail(errc::never_reaches, "the body is not heavier than the air it displaces; net weight [N]", w);

@@ -491,6 +491,9 @@ struct shooter {
       const T v_up = frame.up.dot(v);
       const T inclination = atan2(v_up, T(sqrt(T((v - v_up * frame.up).squaredNorm()))));
       const T g = sqrt(T(air.gravity.squaredNorm()));
+      // The Newton iteration's quadratures count against the call's budget like trial flights.
+      if (opts.flight.shared_steps && !opts.flight.shared_steps->draw(4 * step_pool::fast_query_cost))
+        return std::nullopt;
       const result<detail::hodograph_aim_root<T>> e =
           detail::hodograph_aim(T(model_traits<M>::quadratic_coefficient(model)), g, speed, distance, rise,
                                 guess, std::optional<T>(inclination));
@@ -834,6 +837,24 @@ struct branch_hit {
   probe_result<T> shot;
 };
 
+/// How close the flight launched at `velocity` passes the target [m], to first order: the
+/// height miss where it reaches the target's distance times the cosine of its path angle
+/// there (a steep descent that misses in height by h passes h cos(angle) from the target).
+template <DragModel M, Real T = scalar_of<M>>
+[[nodiscard]] result<T> closest_pass(const M& model, const medium<T>& air, const aim_frame<T>& frame,
+                                     const aim_request<T>& req, const vec3<T>& velocity, const T& distance,
+                                     const solve_options<T>& o) {
+  using std::abs;
+  const auto flight = fly(model, air, shot<T>{req.launch_point, velocity}, o.flight);
+  if (!flight) return unexpected<error>(flight.error());
+  const result<state<T>> at = flight->at_distance(distance);
+  if (!at) return unexpected<error>(at.error());
+  const T miss = frame.up.dot(vec3<T>(at->position - req.target));
+  const T v = scaled_norm(at->velocity);
+  const T level = scaled_norm(vec3<T>(at->velocity - T(frame.up.dot(at->velocity)) * frame.up));
+  return T(abs(miss) * (v > T(0) ? T(level / v) : T(1)));
+}
+
 /// The any-model aim: fixed-azimuth elevation roots, then a crosswind correction per
 /// branch. Public through `aim()`; callable directly to check the closed forms.
 template <DragModel M, Real T = scalar_of<M>>
@@ -927,6 +948,16 @@ template <DragModel M, Real T = scalar_of<M>>
       hit = correct_azimuth(solve_at, sh.bearing, sh.distance, tol, o.max_azimuth_iterations);
     }
     if (!hit) return unexpected<error>(hit.error());
+    if (sh.exact) {
+      // The roots come from the Newton quadrature, not from a flight: fly the answer as a
+      // user would and keep the promise, since at extreme drag (c v^2/g far beyond 1e3,
+      // near-vertical descents) the two differ by more than the tolerance.
+      const result<T> pass = closest_pass(model, air, frame, req, hit->shot.velocity, sh.distance, o);
+      if (!pass) return unexpected<error>(pass.error());
+      if (!(*pass <= tol))
+        return fail(errc::no_convergence,
+                    "the aim flown forward passes the target farther than the tolerance [m]", *pass);
+    }
     const result<aim_solution<T>> s =
         complete(model, air, frame, req.launch_point, hit->shot.velocity, hit->shot.at.time, o,
                  hit->shot.reached ? std::optional<state<T>>(hit->shot.at) : std::nullopt);
@@ -985,18 +1016,20 @@ template <DragModel M, Real T = scalar_of<M>>
 /// \endcode
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<aim_solutions<T>> aim(const M& model, const medium<T>& air, const aim_request<T>& req,
-                                           const solve_options<T>& o = {}) {
-  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
-    return unexpected<error>(ok.error());
-  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
-  if (!frame) return unexpected<error>(frame.error());
-  if constexpr (model_traits<M>::closed_form) {
-    return detail::aim_closed(model, air, *frame, req, o);
-  } else {
-    return detail::aim_direct(model, air, *frame, req, o);
-  }
+                                           const solve_options<T>& opts = {}) {
+  return detail::within_budget(opts, [&](const solve_options<T>& o) -> result<aim_solutions<T>> {
+    if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+    if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
+    if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
+      return unexpected<error>(ok.error());
+    const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+    if (!frame) return unexpected<error>(frame.error());
+    if constexpr (model_traits<M>::closed_form) {
+      return detail::aim_closed(model, air, *frame, req, o);
+    } else {
+      return detail::aim_direct(model, air, *frame, req, o);
+    }
+  });
 }
 
 namespace detail {
@@ -1067,24 +1100,27 @@ template <DragModel M, Real T = scalar_of<M>>
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<aim_solution<T>> speed_for_elevation(const M& model, const medium<T>& air,
                                                           const elevation_request<T>& req,
-                                                          const solve_options<T>& o = {}) {
-  using std::abs;
-  using std::atan2;
-  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
-    return unexpected<error>(ok.error());
-  if (!is_finite(req.elevation) || !(abs(req.elevation) < detail::half_pi<T>()))
-    return fail(errc::invalid_argument, "elevation must be finite and inside (-pi/2, pi/2)", req.elevation);
-  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
-  if (!frame) return unexpected<error>(frame.error());
-  const detail::shooter<M> sh = detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
-  if (!(sh.distance > T(0)))
-    return fail(errc::invalid_argument, "target straight above or below: the elevation must be vertical");
-  const T sight = atan2(sh.rise, sh.distance);
-  if (!(req.elevation > sight))
-    return fail(errc::out_of_reach,
-                "elevation is at or below the line of sight to the target, which is [rad]", sight);
-  return detail::speed_direct(sh, req.elevation);
+                                                          const solve_options<T>& opts = {}) {
+  return detail::within_budget(opts, [&](const solve_options<T>& o) -> result<aim_solution<T>> {
+    using std::abs;
+    using std::atan2;
+    if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+    if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
+      return unexpected<error>(ok.error());
+    if (!is_finite(req.elevation) || !(abs(req.elevation) < detail::half_pi<T>()))
+      return fail(errc::invalid_argument, "elevation must be finite and inside (-pi/2, pi/2)", req.elevation);
+    const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+    if (!frame) return unexpected<error>(frame.error());
+    const detail::shooter<M> sh =
+        detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
+    if (!(sh.distance > T(0)))
+      return fail(errc::invalid_argument, "target straight above or below: the elevation must be vertical");
+    const T sight = atan2(sh.rise, sh.distance);
+    if (!(req.elevation > sight))
+      return fail(errc::out_of_reach,
+                  "elevation is at or below the line of sight to the target, which is [rad]", sight);
+    return detail::speed_direct(sh, req.elevation);
+  });
 }
 
 /// The smallest launch speed that reaches `req.target`, with its elevation, azimuth and
@@ -1094,39 +1130,41 @@ template <DragModel M, Real T = scalar_of<M>>
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<aim_solution<T>> least_speed(const M& model, const medium<T>& air,
                                                   const target_request<T>& req,
-                                                  const solve_options<T>& o = {}) {
-  using std::atan2;
-  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
-    return unexpected<error>(ok.error());
-  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
-  if (!frame) return unexpected<error>(frame.error());
-  if constexpr (model_traits<M>::closed_form) {
-    const vec3<T> offset = req.target - req.launch_point;
-    const detail::time_form<T> f =
-        detail::make_time_form(model_traits<M>::linear_rate(model), air, offset, vec3<T>(vec3<T>::Zero()));
-    const result<T> t = detail::least_time(f, detail::time_scale(offset, air), o.max_iterations);
-    if (!t) return unexpected<error>(t.error());
-    return detail::complete(model, air, *frame, req.launch_point, f.velocity(*t), *t, o);
-  } else {
-    const detail::shooter<M> sh =
-        detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
-    if (!(sh.distance > T(0)))
-      return fail(errc::invalid_argument,
-                  "target straight above or below: least speed needs a closed-form model");
-    const T sight = atan2(sh.rise, sh.distance);
-    const T top = detail::half_pi<T>() * (T(1) - T(1) / T(1 << 20));
-    const T big = std::numeric_limits<T>::max() / T(16);
-    auto need = [&](const T& e) {
-      const result<detail::speed_hit<T>> h = detail::speed_at(sh, e, sh.bearing);
-      return h ? h->speed : big;
-    };
-    const result<std::pair<T, T>> m =
-        detail::brent_min(need, T(sight + (top - sight) / T(1 << 20)), top, o.max_iterations,
-                          std::numeric_limits<T>::digits / 2, "least speed: Brent search did not converge");
-    if (!m) return unexpected<error>(m.error());
-    return detail::speed_direct(sh, m->first);
-  }
+                                                  const solve_options<T>& opts = {}) {
+  return detail::within_budget(opts, [&](const solve_options<T>& o) -> result<aim_solution<T>> {
+    using std::atan2;
+    if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+    if (const status ok = detail::check_points(req.launch_point, req.target, air); !ok)
+      return unexpected<error>(ok.error());
+    const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+    if (!frame) return unexpected<error>(frame.error());
+    if constexpr (model_traits<M>::closed_form) {
+      const vec3<T> offset = req.target - req.launch_point;
+      const detail::time_form<T> f =
+          detail::make_time_form(model_traits<M>::linear_rate(model), air, offset, vec3<T>(vec3<T>::Zero()));
+      const result<T> t = detail::least_time(f, detail::time_scale(offset, air), o.max_iterations);
+      if (!t) return unexpected<error>(t.error());
+      return detail::complete(model, air, *frame, req.launch_point, f.velocity(*t), *t, o);
+    } else {
+      const detail::shooter<M> sh =
+          detail::shooter<M>::make(model, air, *frame, o, req.launch_point, req.target);
+      if (!(sh.distance > T(0)))
+        return fail(errc::invalid_argument,
+                    "target straight above or below: least speed needs a closed-form model");
+      const T sight = atan2(sh.rise, sh.distance);
+      const T top = detail::half_pi<T>() * (T(1) - T(1) / T(1 << 20));
+      const T big = std::numeric_limits<T>::max() / T(16);
+      auto need = [&](const T& e) {
+        const result<detail::speed_hit<T>> h = detail::speed_at(sh, e, sh.bearing);
+        return h ? h->speed : big;
+      };
+      const result<std::pair<T, T>> m =
+          detail::brent_min(need, T(sight + (top - sight) / T(1 << 20)), top, o.max_iterations,
+                            std::numeric_limits<T>::digits / 2, "least speed: Brent search did not converge");
+      if (!m) return unexpected<error>(m.error());
+      return detail::speed_direct(sh, m->first);
+    }
+  });
 }
 
 }  // namespace lob

@@ -124,6 +124,13 @@ struct solve_options {
   std::uintmax_t max_iterations = 200;
   /// Budget of the outer azimuth correction under a crosswind.
   int max_azimuth_iterations = 40;
+  /// Total integration steps of all the trial flights of one solver call (each step of
+  /// each query; a hodograph-path query counts as `step_pool::fast_query_cost`). When it
+  /// runs out the call returns `step_limit`. The default keeps any call below about 0.1 s
+  /// on the 2-core development machine (measured: 0.1-0.5 us per step, the most for stiff
+  /// flights with many rejected steps; ordinary aims take 5 000-25 000 steps); closed-form
+  /// models take no steps.
+  std::int64_t max_total_steps = 200000;
   /// Misses [m] below this count as hits when the flat and lofted solutions merge at
   /// the edge of reach and when a crosswind correction stops; 0 picks 64 ulp of the
   /// problem's length scale (|target - launch| + 1 m).
@@ -131,6 +138,26 @@ struct solve_options {
 };
 
 namespace detail {
+
+/// Runs one solver call `solve(options)` on a step pool of `o.max_total_steps` shared by
+/// all its trial flights (or on the caller's pool, when `o.flight.shared_steps` is set, so
+/// that a solver called by another draws from the outer budget); `step_limit` when the
+/// pool ran dry, whatever the search made of the refused flights.
+template <Real T, class Solve>
+[[nodiscard]] auto within_budget(const solve_options<T>& o, Solve&& solve) -> decltype(solve(o)) {
+  using R = decltype(solve(o));
+  if (o.max_total_steps < 1)
+    return R(fail(errc::invalid_argument, "max_total_steps must be >= 1", o.max_total_steps));
+  if (o.flight.shared_steps) return solve(o);
+  step_pool pool{o.max_total_steps};
+  solve_options<T> budgeted = o;
+  budgeted.flight.shared_steps = &pool;
+  R r = solve(std::as_const(budgeted));
+  if (pool.exhausted)
+    return R(
+        fail(errc::step_limit, "the solver used its whole step budget (max_total_steps)", o.max_total_steps));
+  return r;
+}
 
 template <Real T>
 [[nodiscard]] T half_pi() {

@@ -126,6 +126,13 @@ template <DragModel M, Real T = scalar_of<M>>
   out.landing = *land;
   out.time_of_flight = land->time;
   out.range = horizontal_distance(*land, shot<T>{req.launch_point, out.velocity}, air);
+  // Far from the origin (a launch point much larger than the range) the difference of the
+  // positions has lost the range's digits: take it from the flight's own displacement.
+  if (!(scaled_norm(req.launch_point) < T(4) * out.range)) {
+    const result<T> r = flight->range(req.landing_height);
+    if (!r) return unexpected<error>(r.error());
+    out.range = *r;
+  }
   return out;
 }
 
@@ -184,44 +191,46 @@ template <DragModel M, Real T = scalar_of<M>>
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<farthest_shot<T>> farthest_elevation(const M& model, const medium<T>& air,
                                                           const farthest_request<T>& req,
-                                                          const solve_options<T>& o = {}) {
-  using std::asin;
-  using std::sqrt;
-  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
-  if (!is_finite(req.launch_point)) return fail(errc::invalid_argument, "launch point must be finite");
-  if (!is_finite(req.azimuth)) return fail(errc::invalid_argument, "azimuth must be finite", req.azimuth);
-  if (!is_finite(req.landing_height))
-    return fail(errc::invalid_argument, "landing height must be finite", req.landing_height);
-  if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
-  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
-  if (!frame) return unexpected<error>(frame.error());
+                                                          const solve_options<T>& opts = {}) {
+  return detail::within_budget(opts, [&](const solve_options<T>& o) -> result<farthest_shot<T>> {
+    using std::asin;
+    using std::sqrt;
+    if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+    if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
+    if (!is_finite(req.launch_point)) return fail(errc::invalid_argument, "launch point must be finite");
+    if (!is_finite(req.azimuth)) return fail(errc::invalid_argument, "azimuth must be finite", req.azimuth);
+    if (!is_finite(req.landing_height))
+      return fail(errc::invalid_argument, "landing height must be finite", req.landing_height);
+    if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
+    const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+    if (!frame) return unexpected<error>(frame.error());
 
-  if constexpr (model_traits<M>::closed_form) {
-    if (air.wind == vec3<T>::Zero()) {
-      const T k = model_traits<M>::linear_rate(model);
-      const T g = sqrt(T(air.gravity.squaredNorm()));
-      const T v = req.speed;
-      const T h = height(req.launch_point, air) - req.landing_height;
-      const T alpha = k * v / g;
-      T sin_e;
-      if (alpha <= detail::epsilon<T>()) {
-        // Vacuum (Lichtenberg & Wills, Am. J. Phys. 46 (1978)); the drag correction is
-        // O(alpha) relative, below one ulp here.
-        const T den = 2 * v * v + 2 * g * h;
-        if (!(den >= v * v))
-          return fail(errc::out_of_reach, "landing plane is above the highest reachable point");
-        sin_e = v / sqrt(den);
-      } else {
-        const result<T> s = detail::linear_farthest_s(alpha, T(k * k * h / g), o.max_iterations);
-        if (!s) return unexpected<error>(s.error());
-        sin_e = alpha / detail::expm1(*s);
+    if constexpr (model_traits<M>::closed_form) {
+      if (air.wind == vec3<T>::Zero()) {
+        const T k = model_traits<M>::linear_rate(model);
+        const T g = sqrt(T(air.gravity.squaredNorm()));
+        const T v = req.speed;
+        const T h = height(req.launch_point, air) - req.landing_height;
+        const T alpha = k * v / g;
+        T sin_e;
+        if (alpha <= detail::epsilon<T>()) {
+          // Vacuum (Lichtenberg & Wills, Am. J. Phys. 46 (1978)); the drag correction is
+          // O(alpha) relative, below one ulp here.
+          const T den = 2 * v * v + 2 * g * h;
+          if (!(den >= v * v))
+            return fail(errc::out_of_reach, "landing plane is above the highest reachable point");
+          sin_e = v / sqrt(den);
+        } else {
+          const result<T> s = detail::linear_farthest_s(alpha, T(k * k * h / g), o.max_iterations);
+          if (!s) return unexpected<error>(s.error());
+          sin_e = alpha / detail::expm1(*s);
+        }
+        if (sin_e > T(1)) sin_e = T(1);
+        return detail::land_shot(model, air, *frame, req, T(asin(sin_e)), o);
       }
-      if (sin_e > T(1)) sin_e = T(1);
-      return detail::land_shot(model, air, *frame, req, T(asin(sin_e)), o);
     }
-  }
-  return detail::farthest_direct(model, air, *frame, req, o);
+    return detail::farthest_direct(model, air, *frame, req, o);
+  });
 }
 
 }  // namespace lob

@@ -149,62 +149,69 @@ template <DragModel M, Real T = scalar_of<M>>
 template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<intercept_solutions<T>> intercept(const M& model, const medium<T>& air,
                                                        const intercept_request<T>& req,
-                                                       const intercept_options<T>& o = {}) {
-  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
-  if (!is_finite(req.target.velocity))
-    return fail(errc::invalid_argument, "receiver velocity must be finite");
-  if (const status ok = detail::check_points(req.launch_point, req.target.position, air); !ok)
-    return unexpected<error>(ok.error());
-  if (!is_finite(req.horizon) || req.horizon < T(0))
-    return fail(errc::invalid_argument, "horizon must be finite and >= 0", req.horizon);
-  if (o.samples < 2 || o.samples > 100000)
-    return fail(errc::invalid_argument, "intercept samples must be in [2, 100000]", o.samples);
-  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.solve.reference);
-  if (!frame) return unexpected<error>(frame.error());
-  T horizon = req.horizon;
-  if (horizon == T(0)) {
-    const result<T> h = detail::auto_horizon(model, air, req, o.solve);
-    if (!h) return unexpected<error>(h.error());
-    horizon = *h;
-  }
-  if constexpr (model_traits<M>::closed_form) {
-    const detail::time_form<T> f = detail::make_time_form(model_traits<M>::linear_rate(model), air,
-                                                          vec3<T>(req.target.position - req.launch_point),
-                                                          req.target.velocity);
-    const T u2 = req.speed * req.speed;
-    auto g = [&](const T& t) -> std::optional<T> { return T(f.need2(t) - u2); };
-    // F -> +inf as t -> 0: a first sample already below u^2 hides an earlier root, so
-    // the lower end is halved until F is positive and that stretch is searched first.
-    T t1 = horizon / T(o.samples);
-    T lo = t1;
-    for (int i = 0; i < 2000 && !(*g(lo) > T(0)); ++i) lo /= 2;
-    std::optional<T> early;
-    if (lo < t1 && *g(lo) > T(0)) {
-      const result<T> r = detail::bracketed_root([&](const T& x) { return *g(x); }, lo, t1, *g(lo), *g(t1),
-                                                 o.solve.max_iterations, "meeting time did not converge");
-      if (!r) return unexpected<error>(r.error());
-      early = *r;
-    }
-    const auto r = detail::scan_roots(g, horizon, o.samples, o.solve.max_iterations);
-    if (!r) return unexpected<error>(r.error());
-    const std::optional<T> first = early ? early : r->first;
-    const std::optional<T> last = r->second ? r->second : early;
-    if (!first)
-      return fail(errc::out_of_reach, "the body cannot meet the receiver within the horizon [s]", horizon);
-    intercept_solutions<T> out;
-    const result<aim_solution<T>> a =
-        detail::complete(model, air, *frame, req.launch_point, f.velocity(*first), *first, o.solve);
-    if (!a) return unexpected<error>(a.error());
-    out.earliest = *a;
-    const result<aim_solution<T>> b =
-        detail::complete(model, air, *frame, req.launch_point, f.velocity(*last), *last, o.solve);
-    if (!b) return unexpected<error>(b.error());
-    out.latest = *b;
-    return out;
-  } else {
-    return detail::intercept_direct(model, air, req, horizon, o);
-  }
+                                                       const intercept_options<T>& opts = {}) {
+  return detail::within_budget(
+      opts.solve, [&](const solve_options<T>& budgeted) -> result<intercept_solutions<T>> {
+        intercept_options<T> o = opts;
+        o.solve = budgeted;
+        if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+        if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
+        if (!is_finite(req.target.velocity))
+          return fail(errc::invalid_argument, "receiver velocity must be finite");
+        if (const status ok = detail::check_points(req.launch_point, req.target.position, air); !ok)
+          return unexpected<error>(ok.error());
+        if (!is_finite(req.horizon) || req.horizon < T(0))
+          return fail(errc::invalid_argument, "horizon must be finite and >= 0", req.horizon);
+        if (o.samples < 2 || o.samples > 100000)
+          return fail(errc::invalid_argument, "intercept samples must be in [2, 100000]", o.samples);
+        const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.solve.reference);
+        if (!frame) return unexpected<error>(frame.error());
+        T horizon = req.horizon;
+        if (horizon == T(0)) {
+          const result<T> h = detail::auto_horizon(model, air, req, o.solve);
+          if (!h) return unexpected<error>(h.error());
+          horizon = *h;
+        }
+        if constexpr (model_traits<M>::closed_form) {
+          const detail::time_form<T> f =
+              detail::make_time_form(model_traits<M>::linear_rate(model), air,
+                                     vec3<T>(req.target.position - req.launch_point), req.target.velocity);
+          const T u2 = req.speed * req.speed;
+          auto g = [&](const T& t) -> std::optional<T> { return T(f.need2(t) - u2); };
+          // F -> +inf as t -> 0: a first sample already below u^2 hides an earlier root, so
+          // the lower end is halved until F is positive and that stretch is searched first.
+          T t1 = horizon / T(o.samples);
+          T lo = t1;
+          for (int i = 0; i < 2000 && !(*g(lo) > T(0)); ++i) lo /= 2;
+          std::optional<T> early;
+          if (lo<t1&& * g(lo)> T(0)) {
+            const result<T> r =
+                detail::bracketed_root([&](const T& x) { return *g(x); }, lo, t1, *g(lo), *g(t1),
+                                       o.solve.max_iterations, "meeting time did not converge");
+            if (!r) return unexpected<error>(r.error());
+            early = *r;
+          }
+          const auto r = detail::scan_roots(g, horizon, o.samples, o.solve.max_iterations);
+          if (!r) return unexpected<error>(r.error());
+          const std::optional<T> first = early ? early : r->first;
+          const std::optional<T> last = r->second ? r->second : early;
+          if (!first)
+            return fail(errc::out_of_reach, "the body cannot meet the receiver within the horizon [s]",
+                        horizon);
+          intercept_solutions<T> out;
+          const result<aim_solution<T>> a =
+              detail::complete(model, air, *frame, req.launch_point, f.velocity(*first), *first, o.solve);
+          if (!a) return unexpected<error>(a.error());
+          out.earliest = *a;
+          const result<aim_solution<T>> b =
+              detail::complete(model, air, *frame, req.launch_point, f.velocity(*last), *last, o.solve);
+          if (!b) return unexpected<error>(b.error());
+          out.latest = *b;
+          return out;
+        } else {
+          return detail::intercept_direct(model, air, req, horizon, o);
+        }
+      });
 }
 
 }  // namespace lob

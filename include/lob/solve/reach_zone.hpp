@@ -70,42 +70,45 @@ template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<std::size_t> reach_boundary(const M& model, const medium<T>& air,
                                                  const reach_request<T>& req,
                                                  std::span<boundary_point<T>> out,
-                                                 const solve_options<T>& o = {}) {
-  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_reach(req); !ok) return unexpected<error>(ok.error());
-  if (out.size() < 2)
-    return fail(errc::invalid_argument, "the boundary needs at least 2 points, got", out.size());
-  const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
-  if (!frame) return unexpected<error>(frame.error());
-  const result<farthest_shot<T>> far = farthest_elevation(
-      model, air, farthest_request<T>{req.launch_point, req.speed, req.azimuth, req.floor_height}, o);
-  if (!far) return unexpected<error>(far.error());
-  const auto vertical = fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * frame->up)}, o.flight);
-  if (!vertical) return unexpected<error>(vertical.error());
-  const result<state<T>> apex = vertical->apex();
-  if (!apex) return unexpected<error>(apex.error());
-  const T top = detail::half_pi<T>() * (T(1) - T(1) / T(1 << 20));
-  const T low = std::numeric_limits<T>::max() / T(16);
-  const std::size_t n = out.size();
-  out[0] = boundary_point<T>{T(0), height(apex->position, air)};
-  out[n - 1] = boundary_point<T>{far->range, req.floor_height};
-  for (std::size_t i = 1; i + 1 < n; ++i) {
-    const T d = far->range * T(static_cast<long long>(i)) / T(static_cast<long long>(n - 1));
-    auto neg_height = [&](const T& e) {
-      const auto f =
-          fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * frame->direction(e, req.azimuth))},
-              o.flight);
-      if (!f) return T(low * (T(4) + e));
-      const result<state<T>> s = f->at_distance(d);
-      return s ? T(-height(s->position, air)) : T(low * (T(4) + e));
-    };
-    const result<std::pair<T, T>> m =
-        detail::brent_min(neg_height, T(0), top, o.max_iterations, std::numeric_limits<T>::digits / 2,
-                          "reach boundary: highest-point search did not converge");
-    if (!m) return unexpected<error>(m.error());
-    out[i] = boundary_point<T>{d, T(-m->second)};
-  }
-  return n;
+                                                 const solve_options<T>& opts = {}) {
+  return detail::within_budget(opts, [&](const solve_options<T>& o) -> result<std::size_t> {
+    if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+    if (const status ok = detail::check_reach(req); !ok) return unexpected<error>(ok.error());
+    if (out.size() < 2)
+      return fail(errc::invalid_argument, "the boundary needs at least 2 points, got", out.size());
+    const result<aim_frame<T>> frame = aim_frame<T>::make(air, o.reference);
+    if (!frame) return unexpected<error>(frame.error());
+    const result<farthest_shot<T>> far = farthest_elevation(
+        model, air, farthest_request<T>{req.launch_point, req.speed, req.azimuth, req.floor_height}, o);
+    if (!far) return unexpected<error>(far.error());
+    const auto vertical =
+        fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * frame->up)}, o.flight);
+    if (!vertical) return unexpected<error>(vertical.error());
+    const result<state<T>> apex = vertical->apex();
+    if (!apex) return unexpected<error>(apex.error());
+    const T top = detail::half_pi<T>() * (T(1) - T(1) / T(1 << 20));
+    const T low = std::numeric_limits<T>::max() / T(16);
+    const std::size_t n = out.size();
+    out[0] = boundary_point<T>{T(0), height(apex->position, air)};
+    out[n - 1] = boundary_point<T>{far->range, req.floor_height};
+    for (std::size_t i = 1; i + 1 < n; ++i) {
+      const T d = far->range * T(static_cast<long long>(i)) / T(static_cast<long long>(n - 1));
+      auto neg_height = [&](const T& e) {
+        const auto f =
+            fly(model, air, shot<T>{req.launch_point, vec3<T>(req.speed * frame->direction(e, req.azimuth))},
+                o.flight);
+        if (!f) return T(low * (T(4) + e));
+        const result<state<T>> s = f->at_distance(d);
+        return s ? T(-height(s->position, air)) : T(low * (T(4) + e));
+      };
+      const result<std::pair<T, T>> m =
+          detail::brent_min(neg_height, T(0), top, o.max_iterations, std::numeric_limits<T>::digits / 2,
+                            "reach boundary: highest-point search did not converge");
+      if (!m) return unexpected<error>(m.error());
+      out[i] = boundary_point<T>{d, T(-m->second)};
+    }
+    return n;
+  });
 }
 
 /// Fills `out` with the farthest landing on the floor plane for launch azimuths evenly
@@ -117,19 +120,21 @@ template <DragModel M, Real T = scalar_of<M>>
 [[nodiscard]] result<std::size_t> reach_footprint(const M& model, const medium<T>& air,
                                                   const reach_request<T>& req,
                                                   std::span<footprint_point<T>> out,
-                                                  const solve_options<T>& o = {}) {
-  if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
-  if (const status ok = detail::check_reach(req); !ok) return unexpected<error>(ok.error());
-  if (out.empty()) return fail(errc::invalid_argument, "the footprint needs at least 1 point");
-  const std::size_t n = out.size();
-  for (std::size_t i = 0; i < n; ++i) {
-    const T az = T(2) * detail::pi<T>() * T(static_cast<long long>(i)) / T(static_cast<long long>(n));
-    const result<farthest_shot<T>> f = farthest_elevation(
-        model, air, farthest_request<T>{req.launch_point, req.speed, az, req.floor_height}, o);
-    if (!f) return unexpected<error>(f.error());
-    out[i] = footprint_point<T>{az, f->elevation, f->landing.position, f->range};
-  }
-  return n;
+                                                  const solve_options<T>& opts = {}) {
+  return detail::within_budget(opts, [&](const solve_options<T>& o) -> result<std::size_t> {
+    if (const status ok = check_model(model); !ok) return unexpected<error>(ok.error());
+    if (const status ok = detail::check_reach(req); !ok) return unexpected<error>(ok.error());
+    if (out.empty()) return fail(errc::invalid_argument, "the footprint needs at least 1 point");
+    const std::size_t n = out.size();
+    for (std::size_t i = 0; i < n; ++i) {
+      const T az = T(2) * detail::pi<T>() * T(static_cast<long long>(i)) / T(static_cast<long long>(n));
+      const result<farthest_shot<T>> f = farthest_elevation(
+          model, air, farthest_request<T>{req.launch_point, req.speed, az, req.floor_height}, o);
+      if (!f) return unexpected<error>(f.error());
+      out[i] = footprint_point<T>{az, f->elevation, f->landing.position, f->range};
+    }
+    return n;
+  });
 }
 
 }  // namespace lob
