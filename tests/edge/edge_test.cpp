@@ -1,0 +1,261 @@
+// Regression tests for the edges of the input space (issue 17, found by a fuzzer): each
+// case below once returned success with NaN, infinity or a wrong answer, or ran unbounded.
+#include <doctest/doctest.h>
+
+#include <array>
+#include <cmath>
+#include <limits>
+#include <span>
+
+#include "lob/lob.hpp"
+
+namespace {
+using D = double;
+using lob::vec3;
+constexpr D smallest_normal = std::numeric_limits<D>::min();
+constexpr D smallest_denormal = std::numeric_limits<D>::denorm_min();
+constexpr D largest = std::numeric_limits<D>::max();
+
+bool finite_state(const lob::state<D>& s) {
+  return std::isfinite(s.time) && lob::is_finite(s.position) && lob::is_finite(s.velocity);
+}
+
+// A user model (no traits of its own): linear drag written by hand.
+struct plain_drag {
+  using scalar_type = D;
+  D rate = 0.1;
+  [[nodiscard]] vec3<D> acceleration(const vec3<D>& v) const { return vec3<D>(-rate * v); }
+};
+}  // namespace
+
+TEST_CASE("vertical launch under vanishing quadratic drag is the vacuum flight") {
+  const lob::medium<D> air{};
+  for (const D c : {smallest_normal, smallest_denormal, D(1e-300)}) {
+    for (const D vz : {D(10), D(-10)}) {
+      CAPTURE(c);
+      CAPTURE(vz);
+      const lob::shot<D> launch{vec3<D>(0, 0, 1), vec3<D>(0, 0, vz)};
+      const auto f = lob::fly(lob::quadratic_drag<D>{c}, air, launch);
+      const auto vac = lob::fly(lob::vacuum<D>{}, air, launch);  // closed form: the c -> 0 limit
+      REQUIRE(f);
+      REQUIRE(vac);
+      const auto a = f->apex();
+      const auto land = f->landing(0.0);
+      const auto cross = f->crossing(0.5, lob::side::falling);
+      const auto va = vac->apex();
+      const auto vland = vac->landing(0.0);
+      const auto vcross = vac->crossing(0.5, lob::side::falling);
+      REQUIRE(a);
+      REQUIRE(land);
+      REQUIRE(cross);
+      CHECK(finite_state(*a));
+      CHECK(finite_state(*land));
+      CHECK(finite_state(*cross));
+      // Drag changes these by c times a few metres: nothing at this c.
+      CHECK(a->time == doctest::Approx(va->time).epsilon(1e-14));
+      CHECK(a->position.z() == doctest::Approx(va->position.z()).epsilon(1e-14));
+      CHECK(land->time == doctest::Approx(vland->time).epsilon(1e-14));
+      CHECK(land->velocity.z() == doctest::Approx(vland->velocity.z()).epsilon(1e-14));
+      CHECK(cross->time == doctest::Approx(vcross->time).epsilon(1e-14));
+    }
+  }
+}
+
+TEST_CASE("a drag coefficient at the top of the range with wind is an error or a step limit") {
+  lob::medium<D> windy{};
+  windy.wind = vec3<D>(5, 0, 0);
+  const lob::shot<D> launch{vec3<D>(0, 0, 1), vec3<D>(10, 0, 10)};
+  const auto q = lob::fly(lob::quadratic_drag<D>{largest}, windy, launch);
+  REQUIRE_FALSE(q);
+  CHECK(q.error() == lob::errc::invalid_argument);
+  const auto lq = lob::fly(lob::linear_quadratic_drag<D>{0.1, largest}, windy, launch);
+  REQUIRE_FALSE(lq);
+  CHECK(lq.error() == lob::errc::invalid_argument);
+  // 1e300 is representable all the way: the integration runs out of steps instead.
+  const auto big = lob::fly(lob::quadratic_drag<D>{1e300}, windy, launch);
+  REQUIRE(big);
+  const auto a = big->apex();
+  REQUIRE_FALSE(a);
+  CHECK(a.error() == lob::errc::step_limit);
+  const auto t = big->at(0.5);
+  REQUIRE_FALSE(t);
+  CHECK(t.error() == lob::errc::step_limit);
+}
+
+TEST_CASE("launch speeds whose square overflows are refused by fly(); speed() does not overflow") {
+  const lob::medium<D> air{};
+  const lob::shot<D> launch{vec3<D>(0, 0, 1), vec3<D>(1e155, 0, 1e155)};
+  const auto v = lob::fly(lob::vacuum<D>{}, air, launch);
+  const auto l = lob::fly(lob::linear_drag<D>{0.1}, air, launch);
+  const auto q = lob::fly(lob::quadratic_drag<D>{0.01}, air, launch);
+  const auto lq = lob::fly(lob::linear_quadratic_drag<D>{0.1, 0.01}, air, launch);
+  const auto u = lob::fly(plain_drag{}, air, launch);
+  REQUIRE_FALSE(v);
+  REQUIRE_FALSE(l);
+  REQUIRE_FALSE(q);
+  REQUIRE_FALSE(lq);
+  REQUIRE_FALSE(u);
+  for (const lob::error& e : {v.error(), l.error(), q.error(), lq.error(), u.error()})
+    CHECK(e == lob::errc::invalid_argument);
+  lob::medium<D> gale{};
+  gale.wind = vec3<D>(2e154, 0, 0);
+  CHECK_FALSE(lob::fly(lob::quadratic_drag<D>{0.01}, gale, lob::shot<D>{}));
+  lob::state<D> s;
+  s.velocity = vec3<D>(1e155, 1e155, 0);
+  CHECK(lob::speed(s) == doctest::Approx(std::sqrt(2.0) * 1e155).epsilon(1e-15));
+  s.velocity = vec3<D>(3e-200, 4e-200, 0);  // squares underflow to 0
+  CHECK(lob::speed(s) == doctest::Approx(5e-200).epsilon(1e-15));
+}
+
+TEST_CASE("physics functions report values that leave T's range as errors") {
+  const auto cd = lob::sphere_drag_coefficient(smallest_denormal);
+  REQUIRE_FALSE(cd);
+  CHECK(cd.error() == lob::errc::invalid_argument);
+  CHECK_FALSE(lob::sphere_drag_coefficient(smallest_normal, lob::sphere_correlation::stokes));
+  const auto g = lob::gravity_at_altitude(1e300);
+  REQUIRE_FALSE(g);
+  CHECK(g.error() == lob::errc::invalid_argument);
+  // H = r0 z / (r0 + z) tends to r0 = 6356766 m (U.S. Standard Atmosphere 1976, eq. 18).
+  const auto h = lob::geopotential_altitude(largest);
+  REQUIRE(h);
+  CHECK(*h == doctest::Approx(6356766.0).epsilon(1e-15));
+  CHECK(*h < 6356766.0 + 1e-6);
+  CHECK_FALSE(lob::sutherland_viscosity(1e-300));
+  {
+    lob::air_properties<D> sea_level;  // rounded sea-level air (common practice)
+    sea_level.density = 1.225;
+    sea_level.dynamic_viscosity = 1.8e-5;
+    sea_level.speed_of_sound = 340;
+    sea_level.temperature = 288.15;
+    sea_level.pressure = 101325;
+    CHECK_FALSE(lob::reynolds_number(largest, largest, sea_level));
+  }
+  CHECK_FALSE(lob::quadratic_drag<D>::from_terminal_speed(1e-200));
+  CHECK_FALSE(lob::quadratic_drag<D>::from_terminal_speed(1e-154, 1e300));
+  CHECK_FALSE(lob::quadratic_drag<D>::from_terminal_speed(1e200));  // c underflows to 0
+  CHECK_FALSE(lob::linear_drag<D>::from_terminal_speed(smallest_denormal));
+  CHECK_FALSE(lob::linear_quadratic_drag<D>::from_forces(smallest_denormal, 1.0, 1.0));
+  CHECK_FALSE(lob::linear_quadratic_drag<D>::from_forces(1e-9, 1.797e308, 1.797e308));
+  CHECK_FALSE(lob::linear_quadratic_drag<D>::from_forces(smallest_denormal, smallest_denormal, 1e-12));
+  const auto zero = lob::linear_quadratic_drag<D>::from_forces(1.0, 0.0, 0.0);  // no drag stays fine
+  REQUIRE(zero);
+  CHECK(zero->rate == 0.0);
+}
+
+TEST_CASE("an aim at extreme drag either passes within the tolerance or is an error") {
+  const lob::medium<D> air{};
+  const lob::quadratic_drag<D> drag{1e-6};
+  const lob::aim_request<D> req{vec3<D>(0, 0, 0), vec3<D>(138, 0, 0), 1e6};
+  const auto s = lob::aim(drag, air, req);
+  if (!s) {
+    CHECK(s.error() == lob::errc::no_convergence);
+    return;
+  }
+  const D tol = 64 * std::numeric_limits<D>::epsilon() * (138 + 1);  // the documented default
+  for (const auto& o : {s->flat, s->lofted}) {
+    if (!o) continue;
+    const auto f = lob::fly(drag, air, lob::shot<D>{req.launch_point, o->velocity});
+    REQUIRE(f);
+    const auto p = f->at_distance(138.0);
+    REQUIRE(p);
+    const D cos_path = std::hypot(p->velocity.x(), p->velocity.y()) / lob::speed(*p);
+    CHECK(std::abs(p->position.z() - req.target.z()) * cos_path <= tol);
+  }
+}
+
+TEST_CASE("farthest elevation far from the origin reports the range its answer flies") {
+  const lob::medium<D> air{};
+  const lob::quadratic_drag<D> drag{0.01};
+  const lob::farthest_request<D> req{vec3<D>(1e300, 0, 0), 1e-3, 0, 0};
+  const auto r = lob::farthest_elevation(drag, air, req);
+  REQUIRE(r);
+  const auto f = lob::fly(drag, air, lob::shot<D>{req.launch_point, r->velocity});
+  REQUIRE(f);
+  const auto flown = f->range(0.0);
+  REQUIRE(flown);
+  CHECK(*flown > 0);
+  CHECK(r->range == doctest::Approx(*flown).epsilon(1e-12));
+  // At 1 mm/s the drag is negligible: the vacuum range v^2 / g at 45 degrees.
+  CHECK(r->range == doctest::Approx(1e-6 / 9.80665).epsilon(1e-6));
+}
+
+TEST_CASE("every solver call has a total step budget") {
+  const lob::medium<D> air{};
+  const lob::linear_quadratic_drag<D> stiff{0.1, 1e300};
+  const lob::target_request<D> req{vec3<D>(0, 0, 0), vec3<D>(10, 0, 0)};
+  lob::solve_options<D> o;
+  o.flight.max_steps = 20000;
+  const auto r = lob::least_speed(stiff, air, req, o);
+  REQUIRE_FALSE(r);
+  CHECK(r.error() == lob::errc::step_limit);
+  const auto d = lob::least_speed(stiff, air, req);  // the default budget
+  REQUIRE_FALSE(d);
+  CHECK(d.error() == lob::errc::step_limit);
+  // A caller's pool is drawn from and never overdrawn.
+  lob::step_pool pool{5000};
+  o.flight.shared_steps = &pool;
+  CHECK_FALSE(lob::least_speed(stiff, air, req, o));
+  CHECK(pool.exhausted);
+  CHECK(pool.left == 0);
+  // An ordinary call fits its budget with room to spare.
+  lob::medium<D> windy{};
+  windy.wind = vec3<D>(3, 2, 0);
+  lob::step_pool counter{lob::solve_options<D>{}.max_total_steps};
+  lob::solve_options<D> c;
+  c.flight.shared_steps = &counter;
+  CHECK(lob::least_speed(lob::linear_quadratic_drag<D>{0.05, 0.004}, windy,
+                         lob::target_request<D>{vec3<D>(0, 0, 0), vec3<D>(40, 5, 3)}, c));
+  CHECK_FALSE(counter.exhausted);
+  CHECK(counter.left < c.max_total_steps);
+  lob::solve_options<D> bad;
+  bad.max_total_steps = 0;
+  const auto b =
+      lob::aim(lob::quadratic_drag<D>{0.01}, air, lob::aim_request<D>{{0, 0, 0}, {10, 0, 0}, 20.0}, bad);
+  REQUIRE_FALSE(b);
+  CHECK(b.error() == lob::errc::invalid_argument);
+}
+
+TEST_CASE("max_time and unreachable distances mean the same on every model") {
+  const lob::medium<D> air{};
+  lob::flight_options<D> o;
+  o.max_time = 1;
+  const lob::shot<D> launch{vec3<D>(0, 0, 1), vec3<D>(10, 0, 10)};
+  const auto check_time_limit = [&](const auto& f) {
+    REQUIRE(f);
+    const auto a = f->at(5.0);
+    REQUIRE_FALSE(a);
+    CHECK(a.error() == lob::errc::time_limit);
+    const auto l = f->landing(0.0);  // about 2.1 s after launch
+    REQUIRE_FALSE(l);
+    CHECK(l.error() == lob::errc::time_limit);
+    const auto r = f->range(0.0);
+    REQUIRE_FALSE(r);
+    CHECK(r.error() == lob::errc::time_limit);
+    CHECK(f->apex());  // about 1 s: within max_time for the drag models, at it in vacuum
+  };
+  SUBCASE("vacuum") {
+    lob::flight_options<D> v = o;
+    v.max_time = 1.1;
+    check_time_limit(lob::fly(lob::vacuum<D>{}, air, launch, v));
+  }
+  SUBCASE("linear") { check_time_limit(lob::fly(lob::linear_drag<D>{0.1}, air, launch, o)); }
+  SUBCASE("quadratic, hodograph path") {
+    check_time_limit(lob::fly(lob::quadratic_drag<D>{0.01}, air, launch, o));
+  }
+  SUBCASE("linear and quadratic") {
+    check_time_limit(lob::fly(lob::linear_quadratic_drag<D>{0.1, 0.01}, air, launch, o));
+  }
+  SUBCASE("user model") { check_time_limit(lob::fly(plain_drag{}, air, launch, o)); }
+
+  // A distance beyond the limit the drag allows (linear: u/k = 100 m) is never reached.
+  const auto never = [&](const auto& f) {
+    REQUIRE(f);
+    const auto d = f->at_distance(1e6);
+    REQUIRE_FALSE(d);
+    CHECK(d.error() == lob::errc::never_reaches);
+  };
+  never(lob::fly(lob::linear_drag<D>{0.1}, air, launch));
+  never(lob::fly(lob::quadratic_drag<D>{0.01}, air, launch));
+  never(lob::fly(lob::linear_quadratic_drag<D>{0.1, 0.01}, air, launch));
+  never(lob::fly(lob::quadratic_drag<D>{0.01}, air, lob::shot<D>{vec3<D>(0, 0, 1), vec3<D>(0, 0, 10)}));
+}
