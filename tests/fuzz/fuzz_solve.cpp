@@ -161,6 +161,14 @@ void solve_all(const M& model, const lob::medium<double>& air, const lob::solve_
   }
 }
 
+// The total step budget of one solver call, where the library has it (a template, so
+// that the member is looked up only when instantiated).
+template <class Options>
+void set_total_steps(Options& o, std::int64_t steps) {
+  if constexpr (requires { o.max_total_steps; }) o.max_total_steps = steps;
+  else (void)steps;
+}
+
 }  // namespace
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
@@ -173,8 +181,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   o.max_azimuth_iterations = 1 + in.pick(6);
   if (in.pick(8) == 0) o.tolerance = in.real();
   if (in.pick(8) == 0) o.reference = in.vec(-1, 1);
-  // The total step budget of one solver call, where the library has it.
-  if constexpr (requires { o.max_total_steps; }) o.max_total_steps = 2000 + 100 * in.pick(100);
+  set_total_steps(o, 2000 + 100 * in.pick(100));
   const double a = in.maybe(0, 0.1);
   // known: unbounded solver time; aim at a quadratic coefficient of 1e154 or more takes
   // over a second with 26 iterations and 110 steps (FINDINGS F2).
