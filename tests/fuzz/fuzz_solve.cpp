@@ -52,22 +52,16 @@ void passes(const char* what, const M& model, const lob::medium<double>& air, co
 
 template <class M>
 void solve_all(const M& model, const lob::medium<double>& air, const lob::solve_options<double>& o,
-               double rate, double coefficient, fuzz::input& in) {
+               fuzz::input& in) {
   const lob::vec3<double> from =
       in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>(in.in(-5, 5), in.in(-5, 5), in.in(0, 5));
   const lob::vec3<double> to =
       in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>(in.in(-200, 200), in.in(-200, 200), in.in(-20, 40));
   const double speed = in.maybe(1, 200);
-  const double g = air.gravity.norm();
-  const double stiffness = rate + coefficient * (std::abs(speed) + std::sqrt(g * coefficient) + 1);
   char text[400];
   std::snprintf(text, sizeof text, "; from (%.17g, %.17g, %.17g) to (%.17g, %.17g, %.17g), speed %.17g", from.x(),
                 from.y(), from.z(), to.x(), to.y(), to.z(), speed);
   fuzz::describe_more(text);
-  // found: fixed-step flights whose drag is stiff at the step ((k + c v) dt > 1/2, v the
-  // larger of the launch and terminal speeds) give aims that, flown forward, miss by
-  // hundreds of metres or are not finite (FINDINGS F5, F6).
-  if (o.flight.method != lob::stepper::adaptive && stiffness * o.flight.fixed_step > 0.5) return;
 
   switch (in.pick(8)) {
     case 0: {
@@ -183,9 +177,6 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   if (in.pick(8) == 0) o.reference = in.vec(-1, 1);
   set_total_steps(o, 2000 + 100 * in.pick(100));
   const double a = in.maybe(0, 0.1);
-  // known: unbounded solver time; aim at a quadratic coefficient of 1e154 or more takes
-  // over a second with 26 iterations and 110 steps (FINDINGS F2).
-  if (model >= 2 && !(a < 1e150)) return 0;
   fuzz::describe(
       "model %d, parameter %.17g; gravity (%.17g, %.17g, %.17g), wind (%.17g, %.17g, %.17g); method %d, rtol %.17g, "
       "max_steps %lld, max_time %.17g, fast %d; max_iterations %d, azimuth iterations %d, tolerance %.17g",
@@ -194,15 +185,15 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
       o.flight.max_time, o.flight.use_fast_paths ? 1 : 0, static_cast<int>(o.max_iterations),
       o.max_azimuth_iterations, o.tolerance);
   switch (model) {
-    case 0: solve_all(lob::vacuum<double>{}, air, o, 0, 0, in); break;
-    case 1: solve_all(lob::linear_drag<double>{a}, air, o, a, 0, in); break;
-    case 2: solve_all(lob::quadratic_drag<double>{a}, air, o, 0, a, in); break;
+    case 0: solve_all(lob::vacuum<double>{}, air, o, in); break;
+    case 1: solve_all(lob::linear_drag<double>{a}, air, o, in); break;
+    case 2: solve_all(lob::quadratic_drag<double>{a}, air, o, in); break;
     case 3: {
       const double k = in.maybe(0, 1);
-      solve_all(lob::linear_quadratic_drag<double>{k, a}, air, o, k, a, in);
+      solve_all(lob::linear_quadratic_drag<double>{k, a}, air, o, in);
       break;
     }
-    default: solve_all(fuzz::power_drag{a, in.maybe(0, 2)}, air, o, 0, a, in); break;
+    default: solve_all(fuzz::power_drag{a, in.maybe(0, 2)}, air, o, in); break;
   }
   return 0;
 }
