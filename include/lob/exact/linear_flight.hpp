@@ -52,11 +52,12 @@ class linear_flight {
  public:
   /// Checks the inputs and builds the flight. Errors: `invalid_argument` for a negative or
   /// non-finite rate, a non-finite gravity, wind, position or velocity, a gravity, wind or
-  /// launch (air) velocity whose square overflows T, or a `max_time` [s] not finite and > 0.
+  /// launch (air) velocity whose square overflows T, or a `max_time` [s] not > 0.
   /// Every query whose event lies after `max_time` returns `time_limit` (as integrated
-  /// flights do).
+  /// flights do); `fly()` passes `flight_options::max_time`, and a flight built here
+  /// directly has no cap (the closed forms need none).
   [[nodiscard]] static result<linear_flight> make(const T& rate, const medium<T>& air, const shot<T>& launch,
-                                                  const T& max_time = T(100000)) {
+                                                  const T& max_time = std::numeric_limits<T>::infinity()) {
     if (!is_finite(rate)) return fail(errc::invalid_argument, "drag rate must be finite", rate);
     if (rate < T(0)) return fail(errc::invalid_argument, "drag rate must be >= 0", rate);
     if (!is_finite(air.gravity)) return fail(errc::invalid_argument, "gravity must be finite");
@@ -66,8 +67,7 @@ class linear_flight {
     if (!is_finite(launch.velocity))
       return fail(errc::invalid_argument, "launch velocity must be finite");
     if (const status sq = detail::check_squares(air, launch); !sq) return unexpected<error>(sq.error());
-    if (!is_finite(max_time) || !(max_time > T(0)))
-      return fail(errc::invalid_argument, "max_time must be finite and > 0", max_time);
+    if (!(max_time > T(0))) return fail(errc::invalid_argument, "max_time must be > 0", max_time);
     return linear_flight(rate, air, launch, max_time);
   }
 
