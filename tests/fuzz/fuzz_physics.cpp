@@ -93,11 +93,13 @@ void calibration(fuzz::input& in) {
   fuzz::describe_more(text);
   const auto make_q = [](double c) { return lob::quadratic_drag<double>{c}; };
   const auto make_l = [](double k) { return lob::linear_drag<double>{k}; };
+  // known: calibration has no total budget; with values above 1e150 one call took 2.5 s
+  // (FINDINGS F10), and its standard error can be inf (F7).
+  if (fuzz::guards && in.saw_extreme()) return;
   const auto r = fuzz::timed("calibrate", [&] {
     return quadratic ? lob::calibrate(make_q, start, flight, air, o) : lob::calibrate(make_l, start, flight, air, o);
   });
   if (!r) return;
-  // known: a sample 1e297 m away gives a fit whose standard error is inf (FINDINGS F7).
   PHYS_CHECK(fuzz::finite(r->parameter) && r->parameter > 0, "calibrate: parameter %.17g", r->parameter);
   PHYS_CHECK(fuzz::finite(r->parameter_error) && r->parameter_error >= 0, "calibrate: parameter error %.17g",
              r->parameter_error);

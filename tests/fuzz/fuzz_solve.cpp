@@ -44,6 +44,11 @@ void passes(const char* what, const M& model, const lob::medium<double>& air, co
   if (!f) return;
   const auto at = fuzz::timed("at (re-flight)", [&] { return f->at(s.time_of_flight); });
   if (!at) return;
+  // found: integrated aims at a target straight above or below miss by 1e-9 m, beyond
+  // the tolerance (FINDINGS F9).
+  if (fuzz::guards && !lob::model_traits<M>::closed_form && air.gravity.norm() > 0 &&
+      !(lob::horizontal(lob::vec3<double>(to - from), air).norm() > 1e-9 * (to - from).norm()))
+    return;
   const double miss = (at->position - to).norm();
   const double tol = miss_tolerance(o, from, to);
   FUZZ_CHECK(miss <= tol, "%s: flown forward it misses the target by %.17g m (tolerance %.17g m, time %.17g s)", what,
@@ -177,6 +182,9 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   if (in.pick(8) == 0) o.reference = in.vec(-1, 1);
   set_total_steps(o, 2000 + 100 * in.pick(100));
   const double a = in.maybe(0, 0.1);
+  // known: an aim at a drag coefficient near the largest double takes 3 s in spite of
+  // max_total_steps (FINDINGS F12).
+  if (fuzz::guards && model >= 2 && !(a < 1e300)) return 0;
   fuzz::describe(
       "model %d, parameter %.17g; gravity (%.17g, %.17g, %.17g), wind (%.17g, %.17g, %.17g); method %d, rtol %.17g, "
       "max_steps %lld, max_time %.17g, fast %d; max_iterations %d, azimuth iterations %d, tolerance %.17g",
