@@ -263,9 +263,12 @@ TEST_CASE("bad input gives a specific error naming the offending value") {
   CHECK(lifted.landing(0.0).error() == lob::errc::never_reaches);
   CHECK(lifted.crossing(50.0, lob::side::rising).has_value());
 
-  // a result that overflows T is an error, not inf or nan
+  // a launch speed whose square overflows T is refused when the flight is made (issue 17)
+  CHECK(lob::linear_flight<double>::make(0.0, air, {{0, 0, 0}, {1e300, 0, 1e300}}).error() ==
+        lob::errc::invalid_argument);
+  // a result that overflows T is an error, not inf or nan (max_time set past the asked time)
   const lob::linear_flight<double> huge =
-      lob::linear_flight<double>::make(0.0, air, {{0, 0, 0}, {1e300, 0, 1e300}}).value();
+      lob::linear_flight<double>::make(0.0, air, {{0, 0, 0}, {1e150, 0, 1e150}}, 1e300).value();
   CHECK(huge.at(1e300).error() == lob::errc::invalid_argument);
   const auto far = huge.landing(0.0);
   CHECK((far.has_value() ? lob::is_finite(far->time) && lob::is_finite(far->position)

@@ -978,6 +978,30 @@ template <DragModel M, Real T = scalar_of<M>>
           }
         }
       }
+      if (!(*pass <= tol)) {
+        // Last, ulp by ulp (capped): the secant stops on the height miss, which a steep
+        // descent makes larger than the pass by 1/cos of its angle.
+        const auto pass_of = [&](const probe_result<T>& p) {
+          const vec3<T>& w = p.at.velocity;
+          const T v = scaled_norm(w);
+          const T level = scaled_norm(vec3<T>(w - T(frame.up.dot(w)) * frame.up));
+          return T(abs(p.miss) * (v > T(0) ? T(level / v) : T(1)));
+        };
+        T best_e = hit->elevation;
+        T best = *pass;
+        const T ulp = epsilon<T>() * abs(best_e);
+        for (const T dir : {T(1), T(-1)}) {
+          for (int i = 1; i <= 64; ++i) {
+            const T e = best_e + dir * ulp;
+            const probe_result<T> p = flown_probe(sh, e, hit->azimuth, req.speed);
+            if (!p.reached || !(pass_of(p) < best)) break;
+            best_e = e;
+            best = pass_of(p);
+            hit = branch_hit<T>{e, hit->azimuth, p.drift, p};
+          }
+        }
+        if (best < *pass) pass = best;
+      }
       // No launch direction held in T does better than the path moves per ulp of
       // elevation: where that is more than tol (steep lofted shots onto near targets) the
       // promise is 4 such ulp, measured by central differences on two more flights.
