@@ -2,7 +2,7 @@
 // the solvers at once; every result must equal the one computed on a single thread first.
 // The queries and solvers are documented as const, allocation-free and safe to call from
 // many threads (lob/integrate/integrated_flight.hpp); built with -fsanitize=thread
-// (tests/threads/tsan/) this test also shows that no call races.
+// (`cmake --workflow --preset threads`) this test also shows that no call races.
 #include <doctest/doctest.h>
 
 #include <array>
