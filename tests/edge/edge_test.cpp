@@ -277,3 +277,34 @@ TEST_CASE("max_time and unreachable distances mean the same on every model") {
   never(lob::fly(lob::linear_quadratic_drag<D>{0.1, 0.01}, air, launch));
   never(lob::fly(lob::quadratic_drag<D>{0.01}, air, lob::shot<D>{vec3<D>(0, 0, 1), vec3<D>(0, 0, 10)}));
 }
+
+TEST_CASE("hodograph-path solves at extreme drag draw their real cost from the budget") {
+  // Fuzz findings F12 and F14: still-air quadratic drag at c v^2/g far above 1e3, where
+  // each quadrature needs hundreds of graded panels; once 1.2 s and 3 s for one call.
+  const lob::medium<D> air{};
+  lob::solve_options<D> o;
+  o.flight.max_steps = 146;
+  o.max_iterations = 41;
+  o.max_azimuth_iterations = 5;
+  const auto least = lob::least_speed(
+      lob::quadratic_drag<D>{680.853}, air,
+      lob::target_request<D>{vec3<D>(3.7534905012588702, -0.078202487220568884, 4.9901579308766308),
+                             vec3<D>(11.953917753871963, -172.81452658884567, -9.3156328679331661)},
+      o);
+  REQUIRE_FALSE(least);
+  CHECK(least.error() == lob::errc::step_limit);
+  // The same query charged by its drag: kappa = 1 costs the base, kappa = 1e300 far more.
+  const auto charge = [&](D kappa) {
+    lob::step_pool pool{1000000};
+    lob::flight_options<D> fo;
+    fo.shared_steps = &pool;
+    const D v = 30;
+    const auto f = lob::fly(lob::quadratic_drag<D>{kappa * 9.80665 / (v * v)}, air,
+                            lob::shot<D>{vec3<D>(0, 0, 1), vec3<D>(24, 0, 18)}, fo);
+    REQUIRE(f);
+    CHECK(f->apex());
+    return 1000000 - pool.left;
+  };
+  CHECK(charge(1.0) == lob::step_pool::fast_query_cost);
+  CHECK(charge(1e300) > 50 * lob::step_pool::fast_query_cost);
+}

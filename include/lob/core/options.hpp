@@ -19,12 +19,13 @@ enum class stepper {
 /// A number of integration steps that several flights draw from: the total budget of one
 /// solver call (`solve_options::max_total_steps`). Each step of a query of a flight whose
 /// options point to a pool takes one from it (a hodograph-path query takes
-/// `step_pool::fast_query_cost`); a query that finds it empty fails with `step_limit` and
-/// sets `exhausted`. Not synchronised: one pool per thread.
+/// `step_pool::fast_query_cost` at c v0^2/g <= 1, more as its graded quadrature panels
+/// grow with c v0^2/g: `detail::hodograph_query_cost`); a query that finds it empty fails with `step_limit` and sets
+/// `exhausted`. Not synchronised: one pool per thread.
 struct step_pool {
   std::int64_t left = 0;
   bool exhausted = false;
-  /// Steps charged for one query on the hodograph path (about its cost in steps).
+  /// Steps charged for one query on the hodograph path at c v0^2/g <= 1 (about its cost).
   static constexpr std::int64_t fast_query_cost = 32;
   /// Takes `n` steps; false (and `exhausted`) when fewer are left.
   [[nodiscard]] bool draw(std::int64_t n = 1) noexcept {

@@ -359,6 +359,7 @@ class integrated_flight {
         level_ = level_speed > T(0) ? vec3<T>(level / level_speed) : vec3<T>(vec3<T>::Zero());
         v0_ = sqrt(T(launch.velocity.squaredNorm()));
         theta0_ = atan2(climb0_, level_speed);
+        fast_cost_ = detail::hodograph_query_cost(c_, g_, v0_);
       }
     }
   }
@@ -662,19 +663,19 @@ class integrated_flight {
   // Each answer passes through fast_result: an event after max_time is time_limit, as on
   // the integrated path.
   [[nodiscard]] result<state<T>> fast_apex() const {
-    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    if (const status d = draw_shared(fast_cost_); !d) return unexpected<error>(d.error());
     return fast_result(detail::hodograph_apex(c_, g_, v0_, theta0_));
   }
   [[nodiscard]] result<state<T>> fast_crossing(const T& dh, side branch) const {
-    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    if (const status d = draw_shared(fast_cost_); !d) return unexpected<error>(d.error());
     return fast_result(detail::hodograph_crossing(c_, g_, v0_, theta0_, dh, branch));
   }
   [[nodiscard]] result<state<T>> fast_at(const T& t) const {
-    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    if (const status d = draw_shared(fast_cost_); !d) return unexpected<error>(d.error());
     return fast_result(detail::hodograph_at_time(c_, g_, v0_, theta0_, t));
   }
   [[nodiscard]] result<state<T>> fast_at_distance(const T& distance) const {
-    if (const status d = draw_shared(step_pool::fast_query_cost); !d) return unexpected<error>(d.error());
+    if (const status d = draw_shared(fast_cost_); !d) return unexpected<error>(d.error());
     return fast_result(detail::hodograph_at_distance(c_, g_, v0_, theta0_, distance, T(options_.max_time)));
   }
   [[nodiscard]] result<state<T>> fast_result(const result<detail::hodograph_point<T>>& p) const {
@@ -713,6 +714,7 @@ class integrated_flight {
   bool lifted_ = false;
   bool apex_pending_ = false;
   bool fast_ = false;
+  std::int64_t fast_cost_ = step_pool::fast_query_cost;  // steps charged per fast query
 };
 
 }  // namespace lob

@@ -492,7 +492,9 @@ struct shooter {
       const T inclination = atan2(v_up, T(sqrt(T((v - v_up * frame.up).squaredNorm()))));
       const T g = sqrt(T(air.gravity.squaredNorm()));
       // The Newton iteration's quadratures count against the call's budget like trial flights.
-      if (opts.flight.shared_steps && !opts.flight.shared_steps->draw(4 * step_pool::fast_query_cost))
+      const T c = model_traits<M>::quadratic_coefficient(model);
+      if (opts.flight.shared_steps &&
+          !opts.flight.shared_steps->draw(4 * detail::hodograph_query_cost(c, g, speed)))
         return std::nullopt;
       const result<detail::hodograph_aim_root<T>> e =
           detail::hodograph_aim(T(model_traits<M>::quadratic_coefficient(model)), g, speed, distance, rise,

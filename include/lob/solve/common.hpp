@@ -125,12 +125,12 @@ struct solve_options {
   /// Budget of the outer azimuth correction under a crosswind.
   int max_azimuth_iterations = 40;
   /// Total integration steps of all the trial flights of one solver call (each step of
-  /// each query; a hodograph-path query counts as `step_pool::fast_query_cost`). When it
+  /// each query; a hodograph-path query counts as `detail::hodograph_query_cost`). When it
   /// runs out the call returns `step_limit`. The default keeps any call below about 0.1 s
   /// on the 2-core development machine (measured: 0.1-0.5 us per step, the most for stiff
   /// flights with many rejected steps; ordinary aims take 5 000-25 000 steps); closed-form
   /// models take no steps.
-  std::int64_t max_total_steps = 200000;
+  std::int64_t max_total_steps = 400000;
   /// Misses [m] below this count as hits when the flat and lofted solutions merge at
   /// the edge of reach and when a crosswind correction stops; 0 picks 64 ulp of the
   /// problem's length scale (|target - launch| + 1 m).
