@@ -121,10 +121,12 @@ template <>
 struct tolerance<long double> {
   static constexpr double value = 2e-17;
 };
+#if LOB_TEST_WIDE
 template <>
 struct tolerance<mp50> {
   static constexpr double value = 1e-23;
 };
+#endif
 
 template <class T>
 T pi_half() {
