@@ -81,11 +81,17 @@ template <Real T>
 }
 
 namespace detail {
-/// `invalid_argument` when a squared length that flights form (gravity, wind, launch
-/// velocity, launch velocity relative to the air) overflows T: checked once by `fly()`,
-/// so that every query may use |v|^2. The message gives the length itself.
+/// The checks every flight makes of its air and launch, once, when it is built:
+/// `invalid_argument` for a non-finite gravity, wind, launch position or velocity, or when
+/// a squared length that flights form (gravity, wind, launch velocity, launch velocity
+/// relative to the air) overflows T, so that every query may use |v|^2. The message of
+/// an overflow gives the length itself.
 template <Real T>
-[[nodiscard]] status check_squares(const medium<T>& air, const shot<T>& launch) {
+[[nodiscard]] status check_air_and_launch(const medium<T>& air, const shot<T>& launch) {
+  if (!is_finite(air.gravity)) return fail(errc::invalid_argument, "gravity must be finite");
+  if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
+  if (!is_finite(launch.position)) return fail(errc::invalid_argument, "launch position must be finite");
+  if (!is_finite(launch.velocity)) return fail(errc::invalid_argument, "launch velocity must be finite");
   if (!square_is_finite(air.gravity))
     return fail(errc::invalid_argument, "gravity is too large: its square overflows T; |g|",
                 scaled_norm(air.gravity));

@@ -60,13 +60,8 @@ class linear_flight {
                                                   const T& max_time = std::numeric_limits<T>::infinity()) {
     if (!is_finite(rate)) return fail(errc::invalid_argument, "drag rate must be finite", rate);
     if (rate < T(0)) return fail(errc::invalid_argument, "drag rate must be >= 0", rate);
-    if (!is_finite(air.gravity)) return fail(errc::invalid_argument, "gravity must be finite");
-    if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
-    if (!is_finite(launch.position))
-      return fail(errc::invalid_argument, "launch position must be finite");
-    if (!is_finite(launch.velocity))
-      return fail(errc::invalid_argument, "launch velocity must be finite");
-    if (const status sq = detail::check_squares(air, launch); !sq) return unexpected<error>(sq.error());
+    if (const status ok = detail::check_air_and_launch(air, launch); !ok)
+      return unexpected<error>(ok.error());
     if (!(max_time > T(0))) return fail(errc::invalid_argument, "max_time must be > 0", max_time);
     return linear_flight(rate, air, launch, max_time);
   }

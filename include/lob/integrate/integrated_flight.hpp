@@ -66,11 +66,8 @@ class integrated_flight {
                                                       const flight_options<T>& options = {}) {
     const status ok = check_model(model);
     if (!ok) return unexpected<error>(ok.error());
-    if (!is_finite(air.gravity)) return fail(errc::invalid_argument, "gravity must be finite");
-    if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
-    if (!is_finite(launch.position)) return fail(errc::invalid_argument, "launch position must be finite");
-    if (!is_finite(launch.velocity)) return fail(errc::invalid_argument, "launch velocity must be finite");
-    if (const status sq = detail::check_squares(air, launch); !sq) return unexpected<error>(sq.error());
+    if (const status air_ok = detail::check_air_and_launch(air, launch); !air_ok)
+      return unexpected<error>(air_ok.error());
     // The drag at the launch must be a number: a coefficient near the top of T's range
     // times the launch air speed overflows, and the integration would carry inf and NaN.
     const vec3<T> air_velocity = launch.velocity - air.wind;
