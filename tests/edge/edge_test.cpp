@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <cstring>
 #include <limits>
 #include <span>
 
@@ -141,6 +142,120 @@ TEST_CASE("physics functions report values that leave T's range as errors") {
   const auto zero = lob::linear_quadratic_drag<D>::from_forces(1.0, 0.0, 0.0);  // no drag stays fine
   REQUIRE(zero);
   CHECK(zero->rate == 0.0);
+}
+
+namespace {
+lob::air_properties<D> sea_level_air() {
+  lob::air_properties<D> a;  // rounded sea-level air (common practice)
+  a.density = 1.225;
+  a.dynamic_viscosity = 1.8e-5;
+  a.speed_of_sound = 340;
+  a.temperature = 288.15;
+  a.pressure = 101325;
+  return a;
+}
+bool says(const lob::error& e, const char* part) { return std::strstr(e.message(), part) != nullptr; }
+}  // namespace
+
+// fuzz_physics reproducers crash-c75f3361, -8a5409d5, -7c7c43c9, -d9215e9e, -1cb0e729,
+// -c08b8b3f, -0084949e, -0d4a8a68, -43a14494, -1a550e58: each of these returned inf (or a
+// model its own check() refuses) as success.
+TEST_CASE("physics results that leave T's range are errors, or the representable answer") {
+  const lob::air_properties<D> air = sea_level_air();
+  lob::air_properties<D> thin_sound = air;  // a speed of sound near the smallest denormals
+  thin_sound.speed_of_sound = 1e-320;
+
+  // Stokes rate 3 pi mu d / m: overflows at a denormal mass, underflows at the largest.
+  const lob::sphere<D> feather{smallest_denormal, 1e-3};
+  const lob::sphere<D> anvil{largest, smallest_denormal};
+  for (const lob::sphere<D>& b : {feather, anvil}) {
+    const auto k = lob::stokes_rate(b, air);
+    REQUIRE_FALSE(k);
+    CHECK(k.error() == lob::errc::invalid_argument);
+    CHECK(says(k.error(), "Stokes rate"));
+    CHECK(lob::make_linear_drag(b, air).error() == lob::errc::invalid_argument);
+    CHECK(lob::make_linear_quadratic_drag(b, air, 0.4).error() == lob::errc::invalid_argument);
+  }
+  // Quadratic coefficient rho Cd A / (2 m): overflow and underflow to zero.
+  const auto q_big = lob::make_quadratic_drag(feather, air, 0.5);
+  REQUIRE_FALSE(q_big);
+  CHECK(says(q_big.error(), "quadratic drag coefficient"));
+  const auto q_zero = lob::make_quadratic_drag(lob::sphere<D>{1e10, 1e-160}, air, 0.5);
+  REQUIRE_FALSE(q_zero);
+  CHECK(q_zero.error() == lob::errc::invalid_argument);
+  CHECK(lob::make_quadratic_drag(lob::body<D>{smallest_denormal, 1.0, 1.0}, air).error() ==
+        lob::errc::invalid_argument);
+  // ... while a denormal but non-zero coefficient is still the answer, and Cq = 0 is no drag.
+  const auto q_tiny = lob::make_quadratic_drag(lob::sphere<D>{1.0, 1e-160}, air, 0.5);
+  REQUIRE(q_tiny);
+  CHECK(q_tiny->coefficient > 0);
+  CHECK(q_tiny->check());
+  const auto lq = lob::make_linear_quadratic_drag(lob::sphere<D>{1e-3, 1e-3}, air, 0.0);
+  REQUIRE(lq);
+  CHECK(lq->coefficient == 0.0);
+  // Correlated drag: Reynolds number per speed rho d / mu overflows; viscous rate underflows.
+  lob::air_properties<D> sticky = air;
+  sticky.dynamic_viscosity = smallest_denormal;
+  const auto c_big = lob::make_correlated_drag(lob::sphere<D>{1.0, 1e300}, sticky);
+  REQUIRE_FALSE(c_big);
+  CHECK(says(c_big.error(), "Reynolds number per speed"));
+  const auto c_zero = lob::make_correlated_drag(lob::sphere<D>{largest, 1e-300}, air);
+  REQUIRE_FALSE(c_zero);
+  CHECK(says(c_zero.error(), "viscous rate"));
+
+  // Mach numbers in a speed of sound of 1e-320 m/s overflow.
+  const auto ma = lob::mach_number(1e12, thin_sound);
+  REQUIRE_FALSE(ma);
+  CHECK(says(ma.error(), "Mach number"));
+  CHECK(*lob::mach_number(170.0, air) == 0.5);
+  const lob::state<D> moving{0, vec3<D>::Zero(), vec3<D>(100, 0, 0)};
+  CHECK(lob::flow_at(lob::sphere<D>{0.1, 0.05}, moving, lob::medium<D>{}, thin_sound).error() ==
+        lob::errc::invalid_argument);
+  CHECK(lob::flow_at(lob::body<D>{0.1, 0.002, 0.5}, moving, lob::medium<D>{}, thin_sound).error() ==
+        lob::errc::invalid_argument);
+
+  // Terminal speed of a sphere: its Mach number overflows; and at a gravity of 1e-306 the
+  // terminal Reynolds number (about 4e-308) makes Cd = 24/Re overflow.
+  const auto v_ma = lob::terminal_speed(lob::sphere<D>{0.1, 0.05}, thin_sound);
+  REQUIRE_FALSE(v_ma);
+  CHECK(says(v_ma.error(), "Mach number"));
+  const auto v_cd =
+      lob::terminal_speed(lob::sphere<D>{1e-10, 1e-5}, air, lob::sphere_correlation::clift_gauvin_1970, 1e-306);
+  REQUIRE_FALSE(v_cd);
+  CHECK(v_cd.error() == lob::errc::invalid_argument);
+  // At 1e-300 it is Stokes' law, v = W / (3 pi mu d) (Re = 4e-302: Cd Re = 24 to all digits),
+  // though the weight 1e-310 N is a denormal.
+  const lob::sphere<D> mote{1e-10, 1e-5};
+  const auto v_stokes = lob::terminal_speed(mote, air, lob::sphere_correlation::clift_gauvin_1970, 1e-300);
+  REQUIRE(v_stokes);
+  const D weight = (mote.mass - air.density * mote.volume()) * 1e-300;
+  CHECK(v_stokes->speed ==
+        doctest::Approx(weight / (3 * boost::math::constants::pi<D>() * air.dynamic_viscosity * mote.diameter))
+            .epsilon(1e-12));
+  // Of a body: 2 W / (rho A Cd) overflows, the speed (4e160 m/s) does not.
+  const lob::body<D> dense{1e300, 1e-10, 1e-10};
+  const auto v_body = lob::terminal_speed(dense, air);
+  REQUIRE(v_body);
+  const D expected = std::sqrt(2.0 * 1e300 * 9.80665 / 1.225) * 1e10;  // sqrt(2 m g / rho) / sqrt(A Cd)
+  CHECK(v_body->speed == doctest::Approx(expected).epsilon(1e-14));
+  CHECK(std::isfinite(v_body->reynolds));
+  CHECK(std::isfinite(v_body->mach));
+  // ... and an error where the speed itself overflows, or the net weight does.
+  CHECK(lob::terminal_speed(lob::body<D>{1e300, smallest_denormal, smallest_denormal}, air).error() ==
+        lob::errc::invalid_argument);
+  CHECK(lob::terminal_speed(lob::body<D>{largest, 1.0, 1.0}, air, 1e10).error() == lob::errc::invalid_argument);
+
+  // The advisor: a top Mach number that overflows is an error, not advice.
+  const auto advice = lob::choose_drag_model(lob::sphere<D>{1e-4, 1e-4}, thin_sound, 0.0, 10.0);
+  REQUIRE_FALSE(advice);
+  CHECK(says(advice.error(), "Mach number"));
+  REQUIRE(lob::choose_drag_model(lob::sphere<D>{1e-4, 1e-4}, air, 0.0, 10.0));
+
+  // sqrt(g / c) where g / c underflows: the root of the scaled quotient (2^1000 is exact).
+  const D t = lob::quadratic_drag<D>{534.156}.terminal_speed(smallest_denormal);
+  CHECK(t > 0);
+  CHECK(t == doctest::Approx(std::sqrt(std::ldexp(smallest_denormal, 1000) / 534.156) * std::ldexp(1.0, -500))
+                 .epsilon(1e-15));
 }
 
 TEST_CASE("an aim at extreme drag passes within its documented tolerance or is an error") {

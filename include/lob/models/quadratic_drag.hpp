@@ -40,7 +40,11 @@ struct quadratic_drag {
   [[nodiscard]] T terminal_speed(const T& g = standard_gravity<T>()) const {
     using std::sqrt;
     if (!(coefficient > T(0))) return std::numeric_limits<T>::infinity();
-    return sqrt(T(g / coefficient));
+    const T ratio = g / coefficient;
+    // Where g / c underflows (or overflows) T, the square roots taken apart still give
+    // the representable answer.
+    if (ratio < std::numeric_limits<T>::min() || !is_finite(ratio)) return T(sqrt(g) / sqrt(coefficient));
+    return sqrt(ratio);
   }
 
   /// The model whose terminal speed in still air is `terminal_speed` [m/s] under gravity

@@ -103,13 +103,26 @@ template <Real T>
   return re;
 }
 
-/// Mach number v / a of `speed` [m/s] in `air`.
+namespace detail {
+// v / a for a checked speed and air; `invalid_argument` naming the speed when the quotient
+// overflows T (a speed of sound near the smallest denormals).
+template <Real T>
+[[nodiscard]] result<T> mach_of(const T& speed, const air_properties<T>& air) {
+  const T ma = speed / air.speed_of_sound;
+  if (!is_finite(ma))
+    return fail(errc::invalid_argument, "the Mach number overflows T; speed [m/s]", speed);
+  return ma;
+}
+}  // namespace detail
+
+/// Mach number v / a of `speed` [m/s] in `air`. Errors for a negative or non-finite speed,
+/// bad air, or a quotient beyond the range of T.
 template <Real T>
 [[nodiscard]] result<T> mach_number(const T& speed, const air_properties<T>& air) {
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
   if (const status ok = require_non_negative(speed, "speed must be finite and >= 0 [m/s]"); !ok)
     return unexpected<error>(ok.error());
-  return T(speed / air.speed_of_sound);
+  return detail::mach_of(speed, air);
 }
 
 /// The flow numbers of one flight state.
@@ -132,7 +145,9 @@ template <Real T>
   const T v = sqrt(T(vec3<T>(s.velocity - where.wind).squaredNorm()));
   const result<T> re = reynolds_number(v, ball.diameter, air);
   if (!re) return unexpected<error>(re.error());
-  return flow_numbers<T>{v, *re, T(v / air.speed_of_sound)};
+  const result<T> ma = detail::mach_of(v, air);
+  if (!ma) return unexpected<error>(ma.error());
+  return flow_numbers<T>{v, *re, *ma};
 }
 
 /// As above for a general body, using its `length()`.
@@ -146,7 +161,9 @@ template <Real T>
   const T v = sqrt(T(vec3<T>(s.velocity - where.wind).squaredNorm()));
   const result<T> re = reynolds_number(v, thing.length(), air);
   if (!re) return unexpected<error>(re.error());
-  return flow_numbers<T>{v, *re, T(v / air.speed_of_sound)};
+  const result<T> ma = detail::mach_of(v, air);
+  if (!ma) return unexpected<error>(ma.error());
+  return flow_numbers<T>{v, *re, *ma};
 }
 
 }  // namespace lob

@@ -4,6 +4,7 @@
 /// taken from a sphere correlation at the Reynolds number of the moment. It satisfies
 /// `lob::DragModel`, so `lob::fly()` integrates it and every solver accepts it.
 
+#include "lob/core/checks.hpp"
 #include "lob/core/vec.hpp"
 #include "lob/models/traits.hpp"
 #include "lob/physics/sphere_drag.hpp"
@@ -49,16 +50,26 @@ struct correlated_drag {
   }
 };
 
-/// The speed-dependent model of `ball` in `air` with drag coefficients from `c`.
+/// The speed-dependent model of `ball` in `air` with drag coefficients from `c`. Errors:
+/// `invalid_argument` for a bad sphere or air, or a parameter that overflows T or
+/// underflows to zero.
 template <Real T>
 [[nodiscard]] result<correlated_drag<T>> make_correlated_drag(
     const sphere<T>& ball, const air_properties<T>& air,
     sphere_correlation c = sphere_correlation::clift_gauvin_1970) {
   if (const status ok = ball.check(); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
-  return correlated_drag<T>{
+  const correlated_drag<T> model{
       T(boost::math::constants::pi<T>() * air.dynamic_viscosity * ball.diameter / (T(8) * ball.mass)),
       T(air.density * ball.diameter / air.dynamic_viscosity), c};
+  if (const status ok = first_failure(
+          require_representable(model.viscous_rate,
+                                "the viscous rate pi mu d / (8 m) leaves the range of T [1/s]", true),
+          require_representable(model.reynolds_per_speed,
+                                "the Reynolds number per speed rho d / mu leaves the range of T [s/m]", true));
+      !ok)
+    return unexpected<error>(ok.error());
+  return model;
 }
 
 }  // namespace lob

@@ -18,6 +18,19 @@
 
 namespace lob {
 
+namespace detail {
+// quadratic_drag{c} for c = rho Cd A / (2 m) computed from valid inputs (so c > 0 in exact
+// arithmetic); `invalid_argument` when it overflowed T or underflowed to zero.
+template <Real T>
+[[nodiscard]] result<quadratic_drag<T>> representable_quadratic(const T& c) {
+  if (const status ok = require_representable(
+          c, "the quadratic drag coefficient rho Cd A / (2 m) leaves the range of T [1/m]", true);
+      !ok)
+    return unexpected<error>(ok.error());
+  return quadratic_drag<T>{c};
+}
+}  // namespace detail
+
 /// Stokes drag as a `linear_drag`: rate k = 3 pi mu d / m (see `stokes_rate`). Right while
 /// Re stays below about 0.1; `choose_drag_model` says how far it holds beyond.
 template <Real T>
@@ -28,7 +41,8 @@ template <Real T>
 }
 
 /// Quadratic drag of a sphere with a constant drag coefficient `cd` (for instance
-/// `model_advice::quadratic_cd`): c = rho Cd A / (2 m) [1/m].
+/// `model_advice::quadratic_cd`): c = rho Cd A / (2 m) [1/m]. Errors: `invalid_argument`
+/// for a bad sphere, air or Cd, or a coefficient that overflows T or underflows to zero.
 template <Real T>
 [[nodiscard]] result<quadratic_drag<T>> make_quadratic_drag(const sphere<T>& ball,
                                                             const air_properties<T>& air, const T& cd) {
@@ -36,17 +50,18 @@ template <Real T>
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
   if (const status ok = require_positive(cd, "drag coefficient must be finite and > 0"); !ok)
     return unexpected<error>(ok.error());
-  return quadratic_drag<T>{T(air.density * cd * ball.area() / (T(2) * ball.mass))};
+  return detail::representable_quadratic(T(air.density * cd * ball.area() / (T(2) * ball.mass)));
 }
 
 /// Quadratic drag of a general body with its own drag coefficient: c = rho Cd A / (2 m).
+/// Errors as for the sphere.
 template <Real T>
 [[nodiscard]] result<quadratic_drag<T>> make_quadratic_drag(const body<T>& thing,
                                                             const air_properties<T>& air) {
   if (const status ok = thing.check(); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
-  return quadratic_drag<T>{
-      T(air.density * thing.drag_coefficient * thing.reference_area / (T(2) * thing.mass))};
+  return detail::representable_quadratic(
+      T(air.density * thing.drag_coefficient * thing.reference_area / (T(2) * thing.mass)));
 }
 
 /// Linear plus quadratic drag of a sphere: Stokes' rate 3 pi mu d / m for the linear part
@@ -60,7 +75,12 @@ template <Real T>
   if (!k) return unexpected<error>(k.error());
   if (const status ok = require_non_negative(cq, "inertial drag coefficient must be finite and >= 0"); !ok)
     return unexpected<error>(ok.error());
-  return linear_quadratic_drag<T>{*k, T(air.density * cq * ball.area() / (T(2) * ball.mass))};
+  const T c = air.density * cq * ball.area() / (T(2) * ball.mass);
+  if (const status ok = require_representable(
+          c, "the quadratic drag coefficient rho Cq A / (2 m) leaves the range of T [1/m]", cq > T(0));
+      !ok)
+    return unexpected<error>(ok.error());
+  return linear_quadratic_drag<T>{*k, c};
 }
 
 /// The kinds of drag model, simplest first.
@@ -119,8 +139,10 @@ struct choice_options {
 /// coefficients are fitted by minimising the largest error (Brent's method, Boost.Math
 /// `brent_find_minima`; the largest error is convex in the coefficient).
 ///
-/// Errors: `invalid_argument` for a bad sphere, air, speeds or tolerance, or when the top
-/// Reynolds number exceeds the correlation's range (choose `morrison_2013` to reach 1e6).
+/// Errors: `invalid_argument` for a bad sphere, air, speeds or tolerance, when the top
+/// Reynolds number exceeds the correlation's range (choose `morrison_2013` to reach 1e6),
+/// or when a number of the advice (Mach number, drag error, fitted coefficient) would
+/// leave the range of T.
 template <Real T>
 [[nodiscard]] result<model_advice<T>> choose_drag_model(const sphere<T>& ball, const air_properties<T>& air,
                                                         const T& speed_min, const T& speed_max,
@@ -142,6 +164,8 @@ template <Real T>
   if (rps * speed_max > T(about.max_reynolds))
     return fail(errc::invalid_argument, "top Reynolds number exceeds the correlation's range (morrison_2013 "
                 "reaches 1e6), Re =", T(rps * speed_max));
+  const result<T> mach_max = detail::mach_of(speed_max, air);
+  if (!mach_max) return unexpected<error>(mach_max.error());
 
   constexpr int points = 241;
   const T lowest = speed_min > speed_max / T(1000000) ? speed_min : T(speed_max / T(1000000));
@@ -159,7 +183,8 @@ template <Real T>
       const T a_model = (k + c * v) * v;
       const T scale = a_true > g ? a_true : g;
       const T e = abs(T(a_model - a_true)) / scale;
-      worst = e > worst ? e : worst;
+      // A non-finite error (a drag that overflows T) sticks, for the check at the end.
+      worst = e > worst || !is_finite(e) ? e : worst;
     }
     return worst;
   };
@@ -185,13 +210,27 @@ template <Real T>
   advice.correlation = options.correlation;
   advice.reynolds_min = rps * speed_min;
   advice.reynolds_max = rps * speed_max;
-  advice.mach_max = speed_max / air.speed_of_sound;
+  advice.mach_max = *mach_max;
   advice.linear_error = worst_error(stokes, T(0));
   if (const status ok = fit(T(0), advice.quadratic_cd); !ok) return unexpected<error>(ok.error());
   advice.quadratic_error = worst_error(T(0), T(vr * rps * advice.quadratic_cd));
   if (const status ok = fit(stokes, advice.linear_quadratic_cd); !ok) return unexpected<error>(ok.error());
   advice.linear_quadratic_error = worst_error(stokes, T(vr * rps * advice.linear_quadratic_cd));
   advice.speed_dependent_error = T(about.accuracy);
+  // At the ends of the range of T (a drag rate near the largest T, a Reynolds number per
+  // speed near the smallest) a drag or a fitted Cd leaves the range: an error, not advice.
+  if (const status ok = first_failure(
+          require_representable(advice.reynolds_min, "the lowest Reynolds number leaves the range of T"),
+          require_representable(advice.reynolds_max, "the top Reynolds number leaves the range of T"),
+          require_representable(advice.linear_error, "the error of Stokes drag leaves the range of T"),
+          require_representable(advice.quadratic_cd, "the fitted drag coefficient leaves the range of T"),
+          require_representable(advice.quadratic_error, "the error of quadratic drag leaves the range of T"),
+          require_representable(advice.linear_quadratic_cd,
+                                "the fitted inertial drag coefficient leaves the range of T"),
+          require_representable(advice.linear_quadratic_error,
+                                "the error of linear plus quadratic drag leaves the range of T"));
+      !ok)
+    return unexpected<error>(ok.error());
 
   const T tol = options.tolerance;
   T chosen_error = advice.speed_dependent_error;

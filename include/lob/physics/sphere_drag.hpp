@@ -130,11 +130,18 @@ template <Real T>
 /// The Stokes drag rate k = 3 pi mu d / m [1/s] of a small sphere in `air`: the linear-drag
 /// rate of a body whose drag is Stokes' law F = 3 pi mu d v (Stokes 1851), valid while
 /// Re = rho v d / mu stays below about 0.1 (see `sphere_correlation::stokes`).
+/// Errors: `invalid_argument` for a bad sphere or air, or a rate that overflows T or
+/// underflows to zero (mass, diameter and viscosity at the ends of the range of T).
 template <Real T>
 [[nodiscard]] result<T> stokes_rate(const sphere<T>& ball, const air_properties<T>& air) {
   if (const status ok = ball.check(); !ok) return unexpected<error>(ok.error());
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
-  return T(T(3) * boost::math::constants::pi<T>() * air.dynamic_viscosity * ball.diameter / ball.mass);
+  const T k = T(3) * boost::math::constants::pi<T>() * air.dynamic_viscosity * ball.diameter / ball.mass;
+  if (const status ok =
+          require_representable(k, "the Stokes rate 3 pi mu d / m leaves the range of T [1/s]", true);
+      !ok)
+    return unexpected<error>(ok.error());
+  return k;
 }
 
 }  // namespace lob

@@ -5,6 +5,7 @@
 
 #include <boost/math/tools/toms748_solve.hpp>
 #include <cstdint>
+#include <limits>
 #include <utility>
 
 #include "lob/core/checks.hpp"
@@ -32,7 +33,29 @@ template <Real T>
   const T w = (mass - density * volume) * g;
   if (!(w > T(0)))
     return fail(errc::never_reaches, "the body is not heavier than the air it displaces; net weight [N]", w);
+  if (const status ok = require_representable(w, "the net weight (m - rho V) g overflows T [N]"); !ok)
+    return unexpected<error>(ok.error());
   return w;
+}
+
+// The terminal state of speed v, Reynolds number re and drag coefficient cd in `air`, or
+// `invalid_argument` naming the first of them (or the Mach number) that left the range of
+// T: inputs near the ends of the range can give a speed that overflows or underflows to
+// zero, a Reynolds number that underflows (so Cd = 24/Re overflows), or a speed of sound
+// so small that the Mach number overflows.
+template <Real T>
+[[nodiscard]] result<terminal_state<T>> representable_terminal_state(const T& v, const T& re, const T& cd,
+                                                                     const air_properties<T>& air,
+                                                                     int iterations) {
+  if (const status ok = first_failure(
+          require_representable(v, "the terminal speed leaves the range of T [m/s]", true),
+          require_representable(re, "the terminal Reynolds number leaves the range of T", true),
+          require_representable(cd, "the terminal drag coefficient leaves the range of T", true));
+      !ok)
+    return unexpected<error>(ok.error());
+  const result<T> ma = mach_of(v, air);
+  if (!ma) return unexpected<error>(ma.error());
+  return terminal_state<T>{v, re, cd, *ma, iterations};
 }
 }  // namespace detail
 
@@ -52,7 +75,8 @@ template <Real T>
 /// Errors: `invalid_argument` for a bad sphere, air or gravity; `never_reaches` for a
 /// sphere no heavier than the air it displaces; `invalid_argument` when the terminal
 /// Reynolds number lies beyond the correlation's range; `no_convergence` if the root
-/// finder's budget runs out.
+/// finder's budget runs out; `invalid_argument` when the speed, Reynolds number, Cd or
+/// Mach number of the answer would leave the range of T (inputs at its ends).
 template <Real T>
 [[nodiscard]] result<terminal_state<T>> terminal_speed(
     const sphere<T>& ball, const air_properties<T>& air,
@@ -62,8 +86,13 @@ template <Real T>
   const result<T> w = detail::net_weight(ball.mass, ball.volume(), air.density, g);
   if (!w) return unexpected<error>(w.error());
   const T mu = air.dynamic_viscosity;
-  const T n_best = T(2) * *w * air.density * ball.diameter * ball.diameter / (ball.area() * mu * mu);
-  if (!is_finite(n_best)) return fail(errc::invalid_argument, "Best number overflows", n_best);
+  // N = 2 W rho d^2 / (A mu^2) = 8 W rho / (pi mu^2) for a sphere (d^2 / A = 4 / pi),
+  // grouped so that no intermediate leaves the range of T before the answer does.
+  const T n_best = T(8) / boost::math::constants::pi<T>() * T(*w / mu) * T(air.density / mu);
+  if (const status ok = require_representable(n_best, "the Best number 8 W rho / (pi mu^2) leaves the range of T",
+                                              true);
+      !ok)
+    return unexpected<error>(ok.error());
   const auto balance = [&](const T& re) { return T(re * detail::cd_times_re(re, c) - n_best); };
 
   const T re_cap = T(info(c).max_reynolds);
@@ -93,6 +122,12 @@ template <Real T>
   if (f_hi < T(0))
     return fail(errc::no_convergence, "could not bracket the terminal Reynolds number, N =", n_best);
 
+  // Cd falls with Re below the crisis, so Cd(hi) <= Cd(root) there: where Cd(hi) already
+  // overflows (Re near the smallest denormals), the answer has no Cd in T, and the root
+  // finder would spin on denormals.
+  if (!is_finite(T(detail::cd_times_re(hi, c) / hi)))
+    return fail(errc::invalid_argument, "the terminal drag coefficient leaves the range of T at Reynolds number",
+                hi);
   T re = hi;
   int iterations = 0;
   if (f_hi != T(0)) {
@@ -107,11 +142,12 @@ template <Real T>
     iterations = static_cast<int>(used);
   }
   const T v = re * mu / (air.density * ball.diameter);
-  return terminal_state<T>{v, re, T(detail::cd_times_re(re, c) / re), T(v / air.speed_of_sound), iterations};
+  return detail::representable_terminal_state(v, re, T(detail::cd_times_re(re, c) / re), air, iterations);
 }
 
 /// The terminal speed [m/s] of a general body with constant drag coefficient in still
-/// `air`: v = sqrt(2 (m - rho V) g / (rho A Cd)), exact for that model. Errors as above.
+/// `air`: v = sqrt(2 (m - rho V) g / (rho A Cd)), exact for that model. Errors as above
+/// (also when the net weight overflows T).
 template <Real T>
 [[nodiscard]] result<terminal_state<T>> terminal_speed(const body<T>& thing, const air_properties<T>& air,
                                                        const T& g = standard_gravity<T>()) {
@@ -120,9 +156,15 @@ template <Real T>
   if (const status ok = detail::check_air(air); !ok) return unexpected<error>(ok.error());
   const result<T> w = detail::net_weight(thing.mass, thing.volume, air.density, g);
   if (!w) return unexpected<error>(w.error());
-  const T v = sqrt(T(T(2) * *w / (air.density * thing.reference_area * thing.drag_coefficient)));
-  return terminal_state<T>{v, T(air.density * v * thing.length() / air.dynamic_viscosity),
-                           thing.drag_coefficient, T(v / air.speed_of_sound), 0};
+  const T ratio = T(2) * *w / (air.density * thing.reference_area * thing.drag_coefficient);
+  // Where the quotient under the root leaves the range of T, the square roots taken one
+  // by one still give the answer when it is representable.
+  const T v = is_finite(ratio) && ratio >= std::numeric_limits<T>::min()
+                  ? T(sqrt(ratio))
+                  : T(T(sqrt(T(2))) * T(sqrt(*w)) / T(sqrt(air.density)) / T(sqrt(thing.reference_area)) /
+                      T(sqrt(thing.drag_coefficient)));
+  return detail::representable_terminal_state(v, T(air.density * v * thing.length() / air.dynamic_viscosity),
+                                              thing.drag_coefficient, air, 0);
 }
 
 }  // namespace lob
