@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <cstdint>
 #include <cstring>
 #include <limits>
 #include <span>
@@ -256,6 +257,25 @@ TEST_CASE("physics results that leave T's range are errors, or the representable
   CHECK(t > 0);
   CHECK(t == doctest::Approx(std::sqrt(std::ldexp(smallest_denormal, 1000) / 534.156) * std::ldexp(1.0, -500))
                  .epsilon(1e-15));
+}
+
+// fuzz_physics reproducer crash-de42c747: a sample 1e297 m off gave a fit whose standard
+// error was inf, as success.
+TEST_CASE("a calibration whose residuals overflow is an error") {
+  const lob::shot<D> launch{vec3<D>::Zero(), vec3<D>(5.0288924722114263, -7.2552547906461164, 5.8788288381414988)};
+  const std::array<lob::sample<D>, 2> samples{{{0.1, vec3<D>(0.500284736, -1e297, 1e297)},
+                                               {1e-12, vec3<D>(-0.000999999995, -0.00100000001, -0.000999999994)}}};
+  const lob::measured_flight<D> flight{launch, samples};
+  const auto linear = [](D k) { return lob::linear_drag<D>{k}; };
+  for (const std::int64_t evaluations : {std::int64_t{1}, std::int64_t{4000}}) {
+    CAPTURE(evaluations);
+    lob::fit_options<D> o;
+    o.max_evaluations = evaluations;
+    const auto fit = lob::calibrate(linear, 0.037528616769665069, flight, lob::medium<D>{}, o);
+    REQUIRE_FALSE(fit);
+    CHECK(fit.error() == lob::errc::invalid_argument);
+    CHECK(says(fit.error(), "leaves the range of T"));
+  }
 }
 
 TEST_CASE("an aim at extreme drag passes within its documented tolerance or is an error") {

@@ -267,6 +267,53 @@ TEST_CASE("too few samples, bad inputs and a non-converged fit are errors") {
   CHECK(unknowable.error() == lob::errc::no_convergence);
 }
 
+TEST_CASE("a calibration call has a total step budget") {
+  // Exact samples of quadratic drag in a wind (integrated, not the hodograph path).
+  lob::medium<double> windy{};
+  windy.wind = lob::vec3<double>(2, 1, 0);
+  const lob::shot<double> launch{lob::vec3<double>::Zero(), lob::launch_velocity(24.0, 0.6, 0.3)};
+  const auto truth = lob::fly(lob::quadratic_drag<double>{0.02}, windy, launch);
+  REQUIRE(truth.has_value());
+  std::vector<lob::sample<double>> data;
+  for (int i = 1; i <= 20; ++i) data.push_back({0.1 * i, truth->at(0.1 * i)->position});
+  const lob::measured_flight<double> flight{launch, data};
+  lob::fit_options<double> options;
+  options.fit_speed = true;
+
+  const lob::result<lob::fit_result<double>> fit = lob::calibrate(quadratic_family, 0.05, flight, windy, options);
+  REQUIRE(fit.has_value());
+  CHECK(fit->parameter == doctest::Approx(0.02).epsilon(1e-9));
+  CHECK(fit->steps > 0);
+  CHECK(fit->steps < options.max_total_steps);
+  // A budget below what that fit drew: step_limit, whatever Levenberg-Marquardt made of the
+  // refused flights.
+  options.max_total_steps = fit->steps / 2;
+  const lob::result<lob::fit_result<double>> tired = lob::calibrate(quadratic_family, 0.05, flight, windy, options);
+  REQUIRE_FALSE(tired);
+  CHECK(tired.error() == lob::errc::step_limit);
+  CHECK(std::strstr(tired.error().message(), "max_total_steps") != nullptr);
+  // A caller's pool is drawn from instead, and never overdrawn.
+  lob::step_pool pool{100};
+  options.flight.shared_steps = &pool;
+  CHECK(lob::calibrate(quadratic_family, 0.05, flight, windy, options).error() == lob::errc::step_limit);
+  CHECK(pool.exhausted);
+  CHECK(pool.left == 0);
+  options.flight.shared_steps = nullptr;
+  options.max_total_steps = 0;
+  CHECK(lob::calibrate(quadratic_family, 0.05, flight, windy, options).error() == lob::errc::invalid_argument);
+  // Closed forms take no steps.
+  const auto linear = lob::fly(lob::linear_drag<double>{0.1}, windy, launch);
+  REQUIRE(linear.has_value());
+  std::vector<lob::sample<double>> exact;
+  for (int i = 1; i <= 20; ++i) exact.push_back({0.1 * i, linear->at(0.1 * i)->position});
+  options.max_total_steps = 1;
+  const lob::result<lob::fit_result<double>> closed =
+      lob::calibrate(linear_family, 0.3, lob::measured_flight<double>{launch, exact}, windy, options);
+  REQUIRE(closed.has_value());
+  CHECK(closed->steps == 0);
+  CHECK(closed->parameter == doctest::Approx(0.1).epsilon(1e-9));
+}
+
 TEST_CASE_TEMPLATE("calibration works in every scalar type", T, float, long double LOB_AND_WIDE(mp50)) {
   // Exact samples of a linear-drag flight; the fit stops at Eigen's default tolerances
   // (sqrt(eps) relative in the unknowns, eps of the solver's scalar: long double for the

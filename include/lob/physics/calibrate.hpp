@@ -64,6 +64,12 @@ struct fit_options {
   fit_loss loss = fit_loss::squared;
   T loss_scale = T(1) / T(100);      ///< delta [m] of the robust losses; about 2-3 noise sigmas
   std::int64_t max_evaluations = 4000;  ///< Levenberg–Marquardt's budget of residual evaluations
+  /// Total integration steps of all the flights of one call (every step of every query of
+  /// every evaluation; a hodograph-path query counts as in `solve_options::max_total_steps`).
+  /// When it runs out the call returns `step_limit`. The default keeps a call below about
+  /// 1 s on the 2-core development machine (0.1-0.5 us per step); closed-form models take
+  /// no steps. Where `flight.shared_steps` is set, that pool is drawn from instead.
+  std::int64_t max_total_steps = 2000000;
   flight_options<T> flight{};         ///< how integrated models are flown
 };
 
@@ -83,6 +89,7 @@ struct fit_result {
   T noise_sigma{};         ///< s, the estimated noise per component [m]
   std::int64_t evaluations = 0;  ///< residual evaluations used
   std::int64_t iterations = 0;   ///< Levenberg–Marquardt iterations
+  std::int64_t steps = 0;        ///< integration steps drawn (see `fit_options::max_total_steps`)
 };
 
 namespace detail {
@@ -218,34 +225,15 @@ class calibration_problem : public Eigen::DenseFunctor<lm_scalar<T>> {
 
 }  // namespace detail
 
-/// Fits the drag parameter p of a model family to measured flights. `make(p)` builds the
-/// model for a parameter p > 0 (for instance `[](double k) { return lob::linear_drag<double>{k}; }`
-/// or a quadratic_drag coefficient); every flight is flown with `lob::fly(model, air,
-/// launch, options.flight)` and compared with its samples through `trajectory.at(t)`.
-/// `initial` is a starting guess of p (> 0); p is fitted on a log scale, which keeps it
-/// positive, and its standard error is carried back by the delta method (p times the
-/// error of log p). With `fit_speed` / `fit_elevation` each flight's launch speed and
-/// elevation are unknowns too, started from its nominal launch.
-///
-/// Errors: `invalid_argument` for a bad guess, sample or option, or a flight that cannot
-/// be flown (the model's own error is passed on); `too_few_samples` when there are not
-/// more residual components (3 per sample) than unknowns, or a flight without samples;
-/// `no_convergence` when Levenberg–Marquardt runs out of evaluations or the unknowns are
-/// not identifiable from the data (singular J^T J).
+namespace detail {
+// calibrate() with its inputs checked and options.flight.shared_steps set.
 template <Real T, class MakeModel>
-[[nodiscard]] result<fit_result<T>> calibrate(const MakeModel& make, const T& initial,
-                                              std::span<const measured_flight<T>> flights,
-                                              const medium<T>& air, const fit_options<T>& options = {}) {
+[[nodiscard]] result<fit_result<T>> calibrate_on_pool(const MakeModel& make, const T& initial,
+                                                      std::span<const measured_flight<T>> flights,
+                                                      const medium<T>& air, const fit_options<T>& options) {
   using std::exp;
   using std::log;
   using std::sqrt;
-  using model_type = std::remove_cvref_t<decltype(make(initial))>;
-  static_assert(DragModel<model_type>, "make(p) must return a lob::DragModel");
-  if (const status ok = require_positive(initial, "initial drag parameter must be finite and > 0"); !ok)
-    return unexpected<error>(ok.error());
-  if (flights.empty()) return fail(errc::too_few_samples, "calibration needs at least one flight");
-  if (options.max_evaluations < 1)
-    return fail(errc::invalid_argument, "max_evaluations must be >= 1", options.max_evaluations);
   if (options.loss != fit_loss::squared && (!is_finite(options.loss_scale) || !(options.loss_scale > T(0))))
     return fail(errc::invalid_argument, "robust loss scale must be finite and > 0 [m]", options.loss_scale);
   std::size_t count = 0;
@@ -269,9 +257,9 @@ template <Real T, class MakeModel>
     return fail(errc::too_few_samples,
                 "more residual components (3 per sample) than unknowns needed, samples", count);
 
-  using problem_type = detail::calibration_problem<T, MakeModel>;
+  using problem_type = calibration_problem<T, MakeModel>;
   problem_type problem(make, flights, air, options, unknowns, values);
-  using S = detail::lm_scalar<T>;
+  using S = lm_scalar<T>;
   using matrix = Eigen::Matrix<S, Eigen::Dynamic, Eigen::Dynamic>;
   Eigen::Matrix<S, Eigen::Dynamic, 1> x(unknowns);
   x(0) = static_cast<S>(T(log(initial)));
@@ -359,7 +347,72 @@ template <Real T, class MakeModel>
   out.noise_sigma = sqrt(s2);
   out.evaluations = problem.evaluations();
   out.iterations = static_cast<std::int64_t>(lm.iterations());
+  // Samples far enough from every flight of the model (residuals above the square root of
+  // the largest T) overflow the sums of squares: an error, never an infinite estimate.
+  if (const lob::status ok = first_failure(
+          require_representable(out.parameter, "the fitted drag parameter leaves the range of T", true),
+          require_representable(out.parameter_error,
+                                "the standard error of the drag parameter leaves the range of T"),
+          require_representable(out.rms, "the rms residual leaves the range of T (samples too far off?) [m]"),
+          require_representable(out.noise_sigma, "the noise estimate leaves the range of T [m]"));
+      !ok)
+    return unexpected<error>(ok.error());
+  for (const auto* list : {&out.speeds, &out.speed_errors, &out.elevations, &out.elevation_errors})
+    for (const T& v : *list)
+      if (const lob::status ok = require_representable(v, "a fitted launch speed or elevation or its error "
+                                                     "leaves the range of T");
+          !ok)
+        return unexpected<error>(ok.error());
+  for (const vec3<T>& r : out.residuals)
+    if (!is_finite(r)) return fail(errc::invalid_argument, "a residual leaves the range of T [m]");
   return out;
+}
+
+}  // namespace detail
+
+/// Fits the drag parameter p of a model family to measured flights. `make(p)` builds the
+/// model for a parameter p > 0 (for instance `[](double k) { return lob::linear_drag<double>{k}; }`
+/// or a quadratic_drag coefficient); every flight is flown with `lob::fly(model, air,
+/// launch, options.flight)` and compared with its samples through `trajectory.at(t)`.
+/// `initial` is a starting guess of p (> 0); p is fitted on a log scale, which keeps it
+/// positive, and its standard error is carried back by the delta method (p times the
+/// error of log p). With `fit_speed` / `fit_elevation` each flight's launch speed and
+/// elevation are unknowns too, started from its nominal launch.
+///
+/// Errors: `invalid_argument` for a bad guess, sample or option, or a flight that cannot
+/// be flown (the model's own error is passed on); `too_few_samples` when there are not
+/// more residual components (3 per sample) than unknowns, or a flight without samples;
+/// `no_convergence` when Levenberg–Marquardt runs out of evaluations or the unknowns are
+/// not identifiable from the data (singular J^T J); `step_limit` when the flights used
+/// `max_total_steps`; `invalid_argument` also when an estimate, its standard error or the
+/// residuals leave the range of T (samples so far from any flight of the model that their
+/// squares overflow).
+template <Real T, class MakeModel>
+[[nodiscard]] result<fit_result<T>> calibrate(const MakeModel& make, const T& initial,
+                                              std::span<const measured_flight<T>> flights,
+                                              const medium<T>& air, const fit_options<T>& options = {}) {
+  using model_type = std::remove_cvref_t<decltype(make(initial))>;
+  static_assert(DragModel<model_type>, "make(p) must return a lob::DragModel");
+  if (const status ok = require_positive(initial, "initial drag parameter must be finite and > 0"); !ok)
+    return unexpected<error>(ok.error());
+  if (flights.empty()) return fail(errc::too_few_samples, "calibration needs at least one flight");
+  if (options.max_evaluations < 1)
+    return fail(errc::invalid_argument, "max_evaluations must be >= 1", options.max_evaluations);
+  if (options.max_total_steps < 1)
+    return fail(errc::invalid_argument, "max_total_steps must be >= 1", options.max_total_steps);
+  // One pool for every flight of every evaluation (the caller's, where given), so that the
+  // whole call is bounded, not only each query.
+  step_pool own{options.max_total_steps};
+  fit_options<T> budgeted = options;
+  if (!budgeted.flight.shared_steps) budgeted.flight.shared_steps = &own;
+  step_pool& pool = *budgeted.flight.shared_steps;
+  const std::int64_t before = pool.left;
+  result<fit_result<T>> r = detail::calibrate_on_pool(make, initial, flights, air, std::as_const(budgeted));
+  if (pool.exhausted)
+    return fail(errc::step_limit, "calibration used its whole step budget (fit_options::max_total_steps)",
+                options.max_total_steps);
+  if (r) r->steps = before - pool.left;
+  return r;
 }
 
 /// As above for a single flight.
