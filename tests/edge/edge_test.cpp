@@ -8,6 +8,7 @@
 #include <cstdint>
 #include <cstring>
 #include <limits>
+#include <optional>
 #include <span>
 
 #include "lob/lob.hpp"
@@ -276,6 +277,46 @@ TEST_CASE("a calibration whose residuals overflow is an error") {
     CHECK(fit.error() == lob::errc::invalid_argument);
     CHECK(says(fit.error(), "leaves the range of T"));
   }
+}
+
+// fuzz_solve reproducer crash-f663ebb3: an aim straight down on quadratic drag, flown
+// forward, missed by 3.8e-9 m against its tolerance of 2.4e-13 m.
+TEST_CASE("aims straight above or below on integrated models meet their tolerance") {
+  lob::medium<D> rising_air{};
+  rising_air.wind = vec3<D>(0, 0, 1.5);  // a vertical wind keeps the shots vertical
+  lob::solve_options<D> o;
+  o.flight.max_steps = 530;
+  int checked = 0;
+  const auto check_model = [&](const auto& model, const lob::medium<D>& air, const vec3<D>& from,
+                               const vec3<D>& to, D speed) {
+    CAPTURE(from.z());
+    CAPTURE(to.z());
+    CAPTURE(speed);
+    const auto r = lob::aim(model, air, lob::aim_request<D>{from, to, speed}, o);
+    REQUIRE(r);
+    const D tol = 64 * std::numeric_limits<D>::epsilon() * ((to - from).norm() + 1);
+    for (const std::optional<lob::aim_solution<D>>& branch : {r->flat, r->lofted}) {
+      REQUIRE(branch);
+      const lob::aim_solution<D>& s = *branch;
+      const auto f = lob::fly(model, air, lob::shot<D>{from, s.velocity}, o.flight);
+      REQUIRE(f);
+      const auto at = f->at(s.time_of_flight);
+      REQUIRE(at);
+      CHECK((at->position - to).norm() <= tol);
+      CHECK(s.arrival.position == at->position);
+      ++checked;
+    }
+  };
+  const lob::quadratic_drag<D> q{0.016517891203173877};
+  check_model(q, lob::medium<D>{}, vec3<D>(-1000, -1000, -984.37476157778292), vec3<D>(-1000, -1000, -1000), 1.0);
+  for (const D dz : {-300.0, -15.0, -0.5, 0.5, 3.0, 12.0}) {
+    const vec3<D> from(2, -3, 1);
+    check_model(q, lob::medium<D>{}, from, vec3<D>(from + vec3<D>(0, 0, dz)), 20.0);
+    check_model(lob::linear_quadratic_drag<D>{0.05, 0.01}, rising_air, from, vec3<D>(from + vec3<D>(0, 0, dz)),
+                20.0);
+    check_model(plain_drag{}, lob::medium<D>{}, from, vec3<D>(from + vec3<D>(0, 0, dz)), 20.0);
+  }
+  CHECK(checked == 38);
 }
 
 TEST_CASE("an aim at extreme drag passes within its documented tolerance or is an error") {

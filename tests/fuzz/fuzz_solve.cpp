@@ -44,11 +44,6 @@ void passes(const char* what, const M& model, const lob::medium<double>& air, co
   if (!f) return;
   const auto at = fuzz::timed("at (re-flight)", [&] { return f->at(s.time_of_flight); });
   if (!at) return;
-  // found: integrated aims at a target straight above or below miss by 1e-9 m, beyond
-  // the tolerance (FINDINGS F9).
-  if (fuzz::guards && !lob::model_traits<M>::closed_form && air.gravity.norm() > 0 &&
-      !(lob::horizontal(lob::vec3<double>(to - from), air).norm() > 1e-9 * (to - from).norm()))
-    return;
   const double miss = (at->position - to).norm();
   const double tol = miss_tolerance(o, from, to);
   FUZZ_CHECK(miss <= tol, "%s: flown forward it misses the target by %.17g m (tolerance %.17g m, time %.17g s)", what,

@@ -864,6 +864,56 @@ template <DragModel M, Real T = scalar_of<M>>
   return T(abs(miss) * (v > T(0) ? T(level / v) : T(1)));
 }
 
+/// The state of a vertical flight where it meets `target` (at height `h`), from a
+/// crossing time `t0` close to it: Newton steps t -= (z(t) - h) / vz(t) on the flight's own
+/// `at()` (at most 8), then, where rounding stops them, a walk of at most 64 ulp of t each
+/// way; `no_convergence` with the miss when neither comes within `tol`.
+template <class Flight, Real T>
+[[nodiscard]] result<state<T>> vertical_arrival(const Flight& flight, const medium<T>& air, const vec3<T>& target,
+                                                const T& h, const T& t0, const T& tol) {
+  using std::abs;
+  using std::nextafter;
+  const auto miss_of = [&](const state<T>& s) { return scaled_norm(vec3<T>(s.position - target)); };
+  result<state<T>> at = flight.at(t0);
+  if (!at) return at;
+  state<T> best = *at;
+  T best_miss = miss_of(best);
+  for (int i = 0; i < 8 && !(best_miss <= tol); ++i) {
+    const T vz = T(up(air).dot(at->velocity));
+    if (!(abs(vz) > T(0))) break;
+    const T t = at->time - (height(at->position, air) - h) / vz;
+    if (!is_finite(t) || !(t >= T(0))) break;
+    at = flight.at(t);
+    if (!at) return at;
+    const T m = miss_of(*at);
+    if (!(m < best_miss)) break;
+    best = *at;
+    best_miss = m;
+  }
+  if constexpr (std::is_floating_point_v<T>) {
+    // Rounding of the position (a few ulp of its largest component) can leave the last
+    // Newton step just outside a tolerance of a few ulp: walk t by ulps towards the target.
+    for (int dir = -1; dir <= 1 && !(best_miss <= tol); dir += 2) {
+      T t = best.time;
+      for (int i = 0; i < 64 && !(best_miss <= tol); ++i) {
+        t = nextafter(t, dir < 0 ? T(0) : std::numeric_limits<T>::infinity());
+        const result<state<T>> s = flight.at(t);
+        if (!s) return s;
+        const T m = miss_of(*s);
+        if (m < best_miss) {
+          best = *s;
+          best_miss = m;
+        } else if (m > T(2) * best_miss) {
+          break;
+        }
+      }
+    }
+  }
+  if (!(best_miss <= tol))
+    return fail(errc::no_convergence, "aim: the vertical shot passes the target no closer than [m]", best_miss);
+  return best;
+}
+
 /// The any-model aim: fixed-azimuth elevation roots, then a crosswind correction per
 /// branch. Public through `aim()`; callable directly to check the closed forms.
 template <DragModel M, Real T = scalar_of<M>>
@@ -902,9 +952,21 @@ template <DragModel M, Real T = scalar_of<M>>
         }
         return unexpected<error>(c.error());
       }
-      const result<aim_solution<T>> s = complete(model, air, frame, req.launch_point, v, c->time, o);
-      if (!s) return unexpected<error>(s.error());
-      (b == 0 ? out.flat : out.lofted) = *s;
+      if constexpr (model_traits<M>::closed_form) {
+        const result<aim_solution<T>> s = complete(model, air, frame, req.launch_point, v, c->time, o);
+        if (!s) return unexpected<error>(s.error());
+        (b == 0 ? out.flat : out.lofted) = *s;
+      } else {
+        // The crossing is located to the flight's event accuracy (and on the hodograph
+        // path by another method than at()), so at(crossing time) can miss by far more
+        // than the tolerance: Newton steps on the flight's own at(t), capped.
+        const result<state<T>> at = vertical_arrival(*flight, air, req.target, h, c->time, tol);
+        if (!at) return unexpected<error>(at.error());
+        const result<aim_solution<T>> s =
+            complete(model, air, frame, req.launch_point, v, at->time, o, std::optional<state<T>>(*at));
+        if (!s) return unexpected<error>(s.error());
+        (b == 0 ? out.flat : out.lofted) = *s;
+      }
     }
     return out;
   }
