@@ -37,3 +37,5 @@
 #include "lob/solve/clearance.hpp"
 #include "lob/solve/intercept.hpp"
 #include "lob/solve/reach_zone.hpp"
+#include "lob/step/engine_step.hpp"
+#include "lob/step/stepped_flight.hpp"
