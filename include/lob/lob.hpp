@@ -38,4 +38,5 @@
 #include "lob/solve/intercept.hpp"
 #include "lob/solve/reach_zone.hpp"
 #include "lob/step/engine_step.hpp"
+#include "lob/step/linear_step_form.hpp"
 #include "lob/step/stepped_flight.hpp"

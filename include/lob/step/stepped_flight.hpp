@@ -5,17 +5,7 @@
 /// term) every query is in closed form, O(1) in the number of steps: the velocity obeys
 /// v[n+1] = f v[n] + b, so v[n] = f^n v0 + b S(n) and the position is a geometric sum.
 ///
-/// The closed form rests on one identity: continued to real n, the positions of a linear
-/// rule are exactly those of a continuous linear-drag flight at t = n dt with rate
-/// k = z/dt (z = -ln f), gravity g' = b/(dt phi1(z)) and launch velocity
-///   velocity_first: v0' = f v0/phi1(z) + b (phi1(z) - phi2(z))/phi1(z)^2
-///   position_first: v0' = v0/phi1(z) - b phi2(z)/phi1(z)^2
-/// (phi1, phi2 as in lob/detail/math.hpp; b = dt g f before damping, dt g after). The
-/// positions at whole steps are that flight's `at(n dt)`, uniformly accurate as the damping
-/// goes to zero (f = 1 gives vacuum with v0 +- b/2), and its Lambert W crossings locate
-/// the step at which a height is crossed in O(1); the step is then confirmed on the
-/// positions of the steps around it. Derivation: sum the recurrence (geometric series),
-/// then match the terms in n and in f^n = e^-nz with those of the linear-drag flight.
+/// The closed form and its derivation: lob/step/linear_step_form.hpp.
 
 #include <cstdint>
 #include <limits>
@@ -24,6 +14,7 @@
 
 #include "lob/exact/linear_flight.hpp"
 #include "lob/step/engine_step.hpp"
+#include "lob/step/linear_step_form.hpp"
 
 namespace lob {
 
@@ -182,48 +173,19 @@ class stepped_flight {
 
   // ---- closed form (linear rules) ----
 
-  // z = -ln f >= 0 from f - 1, which is exact for f in [1/2, 1].
-  [[nodiscard]] W decay_per_step() const {
-    using std::log;
-    const W f = W(f_);
-    return f >= W(1) / W(2) ? W(-detail::log1p(W(f - W(1)))) : W(-log(f));
-  }
-
-  // b: what each step adds to the velocity besides the factor, in W.
-  [[nodiscard]] vec3<W> kick() const {
-    const vec3<W> g = gravity_.template cast<W>();
-    const W dt = W(rule_.dt);
-    return rule_.gravity == gravity_timing::before_damping ? vec3<W>(g * W(dt * W(f_))) : vec3<W>(g * dt);
-  }
-
-  // The continuous linear-drag flight through every step (see the file comment).
+  // The continuous linear-drag flight through every step (linear_step_form).
   [[nodiscard]] result<linear_flight<W>> make_extension() {
-    z_ = decay_per_step();
-    const W p1 = detail::phi1(z_);
-    const W p2 = detail::phi2(z_);
-    // phi1 - phi2 = (1 - e^-z (1 + z))/z^2: the difference cancels for large z, the
-    // closed form for small z.
-    using std::exp;
-    const W psi = z_ < W(1) ? W(p1 - p2) : W(W(W(1) - exp(-z_) * W(W(1) + z_)) / W(z_ * z_));
-    const W dt = W(rule_.dt);
-    const vec3<W> b = kick();
-    const vec3<W> v0 = launch_.velocity.template cast<W>();
-    const vec3<W> v0x = rule_.order == euler_order::velocity_first
-                            ? vec3<W>(v0 * W(W(f_) / p1) + b * W(psi / W(p1 * p1)))
-                            : vec3<W>(v0 / p1 - b * W(p2 / W(p1 * p1)));
+    form_ = detail::linear_step_form<W>::make(rule_, gravity_);
     medium<W> ext_air;
-    ext_air.gravity = b / W(dt * p1);
+    ext_air.gravity = form_.gp;
     ext_air.wind = vec3<W>::Zero();
-    b_ = b;
-    s1_ = p1;
-    return linear_flight<W>::make(W(z_ / dt), ext_air, shot<W>{launch_.position.template cast<W>(), v0x});
+    return linear_flight<W>::make(form_.rate(), ext_air,
+                                  shot<W>{launch_.position.template cast<W>(),
+                                          form_.continued_launch_velocity(launch_.velocity.template cast<W>())});
   }
 
-  // f^n and S(n) = sum_{k<n} f^k = n phi1(n z)/phi1(z), uniformly accurate in z.
   [[nodiscard]] vec3<W> exact_velocity(std::int64_t n) const {
-    using std::exp;
-    const W nz = W(W(n) * z_);
-    return vec3<W>(launch_.velocity.template cast<W>() * W(exp(-nz)) + b_ * W(W(n) * detail::phi1(nz) / s1_));
+    return form_.velocity(W(n), launch_.velocity.template cast<W>());
   }
   [[nodiscard]] vec3<W> exact_position(std::int64_t n) const {
     const result<state<W>> s = extension_->at(W(W(n) * W(rule_.dt)));
@@ -245,11 +207,11 @@ class stepped_flight {
     // Height rises at step n (velocity_first: by dt w[n]; position_first: by dt w[n-1]),
     // w[n] = f^n w0 + b_up S(n) falls with n and is zero at n_c = ln(1 + q)/z.
     const W w0 = W(up_.template cast<W>().dot(launch_.velocity.template cast<W>()));
-    const W bu = W(-up_.template cast<W>().dot(b_));  // > 0
+    const W bu = W(-up_.template cast<W>().dot(form_.b));  // > 0
     const std::int64_t first = rule_.order == euler_order::velocity_first ? 1 : 0;
     if (!(w0 > W(0))) return std::int64_t{0};
-    const W ratio = W(w0 * s1_ / bu);  // n_c at z = 0
-    const W q = W(ratio * z_);
+    const W ratio = W(w0 * form_.phi1_z / bu);  // n_c at z = 0
+    const W q = W(ratio * form_.z);
     const W nc = q == W(0) ? ratio : W(ratio * W(detail::log1p(q) / q));
     if (!(nc <= W(max_steps_))) return fail(errc::step_limit, "the apex lies beyond max_steps, at step", nc);
     // Step n rises (z[n] > z[n-1]) when w[n - 1 + first] > 0, that is n - 1 + first < n_c;
@@ -367,9 +329,7 @@ class stepped_flight {
   T g_{};
   vec3<T> up_ = vec3<T>(T(0), T(0), T(1));
   bool linear_ = true;
-  W z_{};
-  W s1_{1};
-  vec3<W> b_ = vec3<W>::Zero();
+  detail::linear_step_form<W> form_{};
   std::optional<linear_flight<W>> extension_;
 };
 
