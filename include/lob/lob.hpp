@@ -40,3 +40,4 @@
 #include "lob/step/engine_step.hpp"
 #include "lob/step/linear_step_form.hpp"
 #include "lob/step/stepped_flight.hpp"
+#include "lob/step/stepped_aim.hpp"
