@@ -162,6 +162,9 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
       launch.position.x(), launch.position.y(), launch.position.z(), launch.velocity.x(), launch.velocity.y(),
       launch.velocity.z(), static_cast<int>(o.method), o.relative_tolerance, o.fixed_step,
       static_cast<long long>(o.max_steps), o.max_time, o.use_fast_paths ? 1 : 0);
+  // known: integrated flights at launch speeds near 1e154 (|v|^2 near the largest double)
+  // give non-finite states (FINDINGS F13).
+  if (fuzz::guards && model >= 2 && !(launch.velocity.cwiseAbs().maxCoeff() < 1e150)) return 0;
   switch (model) {
     case 0: fly_and_query(lob::vacuum<double>{}, air, launch, o, in); break;
     case 1: fly_and_query(lob::linear_drag<double>{a}, air, launch, o, in); break;
