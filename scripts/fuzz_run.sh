@@ -11,7 +11,7 @@ seconds=${1:?usage: scripts/fuzz_run.sh <seconds-per-harness> [build-dir] [--rep
 source_dir=$(cd "$(dirname "$0")/.." && pwd)
 build_dir=${2:-"$source_dir/build/fuzz"}
 report_only=${3:-}
-harnesses="fuzz_flight fuzz_solve fuzz_physics"
+harnesses="fuzz_flight fuzz_solve fuzz_physics fuzz_step"
 
 # -O1 with line tables only: full debug info costs more compile time than the short CI
 # run spends fuzzing, and the sanitizers' reports still name file and line.

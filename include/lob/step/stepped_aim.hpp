@@ -230,7 +230,11 @@ template <Real T>
     if (!hit) return fail(errc::no_convergence, "stepped aim: no interpolated meeting near step", *root);
     const auto [j, s] = *hit;
     const auto [mm, a] = m.interpolated(j, s);
-    const vec3<W> v0 = mm / a;
+    // |M|/A is u to the accuracy of M, whose rounding (an ulp of the offset and of the
+    // drop) is large against a small M; taking the direction of M at exactly speed u
+    // moves the meeting point by no more than that rounding.
+    const W len = scaled_norm(mm);
+    const vec3<W> v0 = len > W(0) ? vec3<W>(mm * W(W(req.speed) / len)) : vec3<W>(mm / a);
     stepped_aim<T> out;
     out.step = j + 1;
     out.fraction = T(s);
