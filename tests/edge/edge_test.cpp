@@ -260,6 +260,20 @@ TEST_CASE("physics results that leave T's range are errors, or the representable
                  .epsilon(1e-15));
 }
 
+// fuzz_physics reproducer crash-390c0a70: a denormal pressure gave a humid-air density of 0
+// as success (p M0 / (R* T) underflows).
+TEST_CASE("a humid-air density that rounds to zero is an error naming the pressure") {
+  const auto rho = lob::humid_air_density(320.2, 8.09e-320, -0.0);
+  REQUIRE_FALSE(rho);
+  CHECK(rho.error() == lob::errc::invalid_argument);
+  CHECK(says(rho.error(), "pressure"));
+  CHECK_FALSE(lob::make_air(320.2, 8.09e-320, 0.0));
+  // A pressure that is small but whose density is representable still gives it.
+  const auto thin = lob::humid_air_density(320.2, 1e-300, 0.0);
+  REQUIRE(thin);
+  CHECK(*thin == doctest::Approx(1e-300 * 0.0289644 / (8.31432 * 320.2)).epsilon(1e-12));
+}
+
 // fuzz_physics reproducer crash-de42c747: a sample 1e297 m off gave a fit whose standard
 // error was inf, as success.
 TEST_CASE("a calibration whose residuals overflow is an error") {

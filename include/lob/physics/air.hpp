@@ -133,6 +133,9 @@ template <Real T>
 /// standard) and water vapour: rho = ((p - e) M0 + e Mv) / (R* T), e from
 /// `vapour_pressure`. Dry air at 288.15 K and 101325 Pa gives 1.2250 kg/m^3. The
 /// compressibility factor of air (about 0.9996 near sea level) is neglected, a 0.05% effect.
+/// Errors: those of `check_temperature` and `vapour_pressure`, and `invalid_argument` naming
+/// the pressure when the density would round to zero (a denormal pressure, about 1e-318 Pa
+/// or less).
 template <Real T>
 [[nodiscard]] result<T> humid_air_density(const T& temperature, const T& pressure,
                                           const T& relative_humidity = T(0)) {
@@ -141,8 +144,14 @@ template <Real T>
   const result<T> e = vapour_pressure(temperature, pressure, relative_humidity);
   if (!e) return e;
   using c = air_constants<T>;
-  return T(((pressure - *e) * c::molar_mass() + *e * c::water_molar_mass()) /
-           (c::gas_constant() * temperature));
+  const T rho =
+      ((pressure - *e) * c::molar_mass() + *e * c::water_molar_mass()) / (c::gas_constant() * temperature);
+  // A denormal pressure (8.09e-320 Pa at 320.2 K, a fuzz_physics finding) gives a density
+  // below the least T > 0: an error naming the pressure, never 0 as a density.
+  if (!(rho > T(0)))
+    return fail(errc::invalid_argument, "the air density underflows T (rounds to 0) at this pressure [Pa]",
+                pressure);
+  return rho;
 }
 
 /// Everything physics/ needs about the air at `temperature` [K], `pressure` [Pa] and
