@@ -371,6 +371,39 @@ TEST_CASE("an aim at extreme drag passes within its documented tolerance or is a
   }
 }
 
+// fuzz_solve reproducer crash-57d0bea2 (and a case 3.4e10 m up): a slow vacuum aim from far
+// above the target flew at 1.0000000218 m/s when asked 1 (b^2 - g^2 d^2 cancelled, and
+// |M| / tau is u only to the rounding of M = D - g psi for a large offset D); under linear
+// drag (Halley on the time form) 2.5e-12 and 6.4e-11 off.
+TEST_CASE("a slow aim from far above flies at the asked speed and passes its target") {
+  const D eps = std::numeric_limits<D>::epsilon();
+  const lob::medium<D> air{};
+  const vec3<D> from[] = {vec3<D>(-726.52780956740673, -996.12420843823907, 50529816.674366571),
+                          vec3<D>(3, -2, 3.4e10)};
+  const vec3<D> to[] = {vec3<D>(-1000, -1000, -1000), vec3<D>(10, 5, 0.5)};
+  int flown = 0;
+  const auto check = [&](const auto& model) {
+    for (int i = 0; i < 2; ++i) {
+      const auto s = lob::aim(model, air, lob::aim_request<D>{from[i], to[i], 1.0});
+      REQUIRE(s);
+      const D tol = 64 * eps * ((to[i] - from[i]).norm() + 1);  // the default tolerance
+      for (const auto& o : {s->flat, s->lofted}) {
+        REQUIRE(o);
+        CHECK(std::abs(o->speed - 1.0) <= 4 * eps);
+        const auto f = lob::fly(model, air, lob::shot<D>{from[i], o->velocity});
+        REQUIRE(f);
+        const auto at = f->at(o->time_of_flight);
+        REQUIRE(at);
+        CHECK((at->position - to[i]).norm() <= tol);
+        ++flown;
+      }
+    }
+  };
+  check(lob::vacuum<D>{});
+  check(lob::linear_drag<D>{1e-6});
+  CHECK(flown == 8);
+}
+
 TEST_CASE("farthest elevation far from the origin reports the range its answer flies") {
   const lob::medium<D> air{};
   const lob::quadratic_drag<D> drag{0.01};

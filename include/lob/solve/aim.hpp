@@ -209,6 +209,20 @@ struct time_form {
     const T tau = t * d.phi1;
     return vec3<T>((n0 + drift * t + wind * tau - g * T(t * t * phi2(z, d))) / tau);
   }
+  // The launch velocity of an aim at speed u meeting the point at time t (a root of
+  // need2 = u^2): the direction of M(t) at exactly speed u. |M|/tau is u only to the
+  // rounding of M, which for a large offset D and a short M (a slow shot falling 5e7 m,
+  // fuzz_solve crash-57d0bea2) is far above an ulp of u; at speed u the meeting point moves
+  // by |u tau - |M|| from M, no more than that rounding (an ulp or so of |D|), inside the
+  // aim tolerance of 64 ulp of |D|.
+  [[nodiscard]] vec3<T> velocity_at_speed(const T& t, const T& u) const {
+    const T z = k * t;
+    const decay_pair<T> d = decay(z);
+    const T tau = t * d.phi1;
+    const vec3<T> m = n0 + drift * t + wind * tau - g * T(t * t * phi2(z, d));
+    const T len = scaled_norm(m);
+    return len > T(0) && is_finite(len) ? vec3<T>(m * T(u / len)) : vec3<T>(m / tau);
+  }
 };
 
 // The time of least needed speed: the root of H between a lower time where H < 0 and an
@@ -315,16 +329,27 @@ struct time_roots {
 };
 // Vacuum meeting times of a still target, the two roots in s = t^2 of
 // (g^2/4) s^2 - (u^2 - g H) s + |D|^2 = 0 (any mechanics textbook), the smaller one from
-// the product of the roots so that it does not cancel. False if out of reach.
+// the product of the roots so that it does not cancel. The discriminant b^2 - g^2 d^2 is
+// taken as (b - g d)(b + g d), the factor that cancels (g d against D.g, the target
+// nearly straight below or above) through |g|^2 |D|^2 - (D.g)^2 = |g x D|^2 (Lagrange's
+// identity): b^2 - g^2 d^2 lost all but 8 digits for a slow shot 5e7 m down (fuzz_solve
+// crash-57d0bea2, flat time 7e-13 relative off, its speed 2e-8). False if out of reach.
 template <Real T>
 [[nodiscard]] bool vacuum_times(const vec3<T>& offset, const vec3<T>& gravity, const T& u, T& flat,
                                 T& lofted) {
   using std::sqrt;
   const T g2 = gravity.squaredNorm();
-  const T b = u * u + T(offset.dot(gravity));  // u^2 - g H
+  const T dot = offset.dot(gravity);
+  const T b = u * u + dot;  // u^2 - g H
   const T d2 = offset.squaredNorm();
-  const T disc = b * b - g2 * d2;
-  if (!(disc >= T(0)) || !(b > T(0))) return false;
+  const T gd = T(sqrt(g2) * sqrt(d2));
+  const T c2 = T(gravity.cross(offset).squaredNorm());  // (g d)^2 - (D.g)^2
+  // b - g d = u^2 + (D.g - g d), b + g d = u^2 + (D.g + g d); the one of D.g - g d and
+  // D.g + g d that cancels is -c2 / (g d + D.g) or c2 / (g d - D.g).
+  const T minus = dot >= T(0) ? T(u * u - c2 / T(gd + dot)) : T(b - gd);
+  const T plus = dot >= T(0) ? T(b + gd) : T(u * u + c2 / T(gd - dot));
+  const T disc = minus * plus;
+  if (!is_finite(disc) || !(disc >= T(0)) || !(b > T(0))) return false;
   const T big = 2 * (b + sqrt(disc)) / g2;
   lofted = sqrt(big);
   flat = sqrt(T(4 * d2 / (g2 * big)));
@@ -1114,7 +1139,7 @@ template <DragModel M, Real T = scalar_of<M>>
   }
   aim_solutions<T> out;
   const result<aim_solution<T>> a =
-      complete(model, air, frame, req.launch_point, f.velocity(r->flat), r->flat, o);
+      complete(model, air, frame, req.launch_point, f.velocity_at_speed(r->flat, req.speed), r->flat, o);
   if (!a) return unexpected<error>(a.error());
   out.flat = *a;
   if (r->merged) {
@@ -1122,7 +1147,7 @@ template <DragModel M, Real T = scalar_of<M>>
     return out;
   }
   const result<aim_solution<T>> b =
-      complete(model, air, frame, req.launch_point, f.velocity(r->lofted), r->lofted, o);
+      complete(model, air, frame, req.launch_point, f.velocity_at_speed(r->lofted, req.speed), r->lofted, o);
   if (!b) return unexpected<error>(b.error());
   out.lofted = *b;
   return out;
