@@ -260,6 +260,48 @@ TEST_CASE("physics results that leave T's range are errors, or the representable
                  .epsilon(1e-15));
 }
 
+// fuzz_flight reproducer crash-b86eac39 (FINDINGS F15): a semi-implicit Euler step of
+// 1/60 s at a drag coefficient of 8.4e11 /m is unstable (the speed reaches 1e27 m/s in three
+// steps); the crossing it located was 12 m off its height, since the flight moves farther
+// than that in one ulp of time there. It is no_convergence, or at its height.
+TEST_CASE("a fixed-step crossing is at its height or an error") {
+  const lob::quadratic_drag<D> stiff{844805426620.41089};
+  const lob::shot<D> launch{vec3<D>(-1000, 996.49042496375978, 495.50621805142282),
+                            vec3<D>(0, 0, 1.3109957438598687e-09)};
+  for (const lob::stepper method : {lob::stepper::semi_implicit_euler, lob::stepper::rk4}) {
+    lob::flight_options<D> o;
+    o.method = method;
+    o.fixed_step = 1.0 / 60;
+    o.max_steps = 434;
+    const auto f = lob::fly(stiff, lob::medium<D>{}, launch, o);
+    REQUIRE(f);
+    for (const D h : {445.50621805142282, 490.0, -50.0}) {
+      const auto c = f->crossing(h, lob::side::falling);
+      if (method == lob::stepper::semi_implicit_euler && h == 445.50621805142282) {
+        REQUIRE_FALSE(c);  // the reproducer: no time of T puts it within 1e-9 of its height
+        CHECK(c.error() == lob::errc::no_convergence);
+        CHECK(says(c.error(), "cannot be located"));
+      }
+      if (!c) {
+        CHECK(c.error() != lob::errc::invalid_argument);
+        continue;
+      }
+      const D size = 1 + std::abs(h) + (c->position - launch.position).norm();
+      CHECK(std::abs(c->position.z() - h) <= 1e-9 * size);
+    }
+  }
+  // A stable step at a mild drag still locates it (the same heights, 50 m/s up).
+  lob::flight_options<D> o;
+  o.method = lob::stepper::semi_implicit_euler;
+  o.fixed_step = 1.0 / 60;
+  const auto mild = lob::fly(lob::quadratic_drag<D>{0.01}, lob::medium<D>{},
+                             lob::shot<D>{launch.position, vec3<D>(3, 0, 50)}, o);
+  REQUIRE(mild);
+  const auto c = mild->crossing(445.50621805142282, lob::side::falling);
+  REQUIRE(c);
+  CHECK(c->position.z() == doctest::Approx(445.50621805142282).epsilon(1e-12));
+}
+
 // fuzz_physics reproducer crash-390c0a70: a denormal pressure gave a humid-air density of 0
 // as success (p M0 / (R* T) underflows).
 TEST_CASE("a humid-air density that rounds to zero is an error naming the pressure") {

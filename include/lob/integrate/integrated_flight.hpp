@@ -43,7 +43,10 @@ namespace lob {
 /// relative tolerance is then met on landing time and range (measured against a 25-digit
 /// reference in tests/integrate). Fixed-step methods (RK4, semi-implicit Euler) step from the launch
 /// with `fixed_step` and are reproducible bit for bit; their events are located on a
-/// cubic Hermite interpolant between steps.
+/// cubic Hermite interpolant between steps. A located crossing or distance is at its
+/// height or distance within 2^-30 (about 9.3e-10; 1024 ulps for float) of 1 m + that
+/// value + its distance from the launch, else `no_convergence` (the flight moves farther
+/// in one ulp of time: an unstable fixed step whose state grows without bound).
 ///
 /// Models with `model_traits<M>::quadratic_fast_path` (quadratic drag) answer `apex()`,
 /// `crossing()`, `landing()`, `range()` and (but for a vertical launch) `at()` and
@@ -149,7 +152,7 @@ class integrated_flight {
         const T fa = f(p.t0);
         const T fb = f(p.t1);
         if (fa < T(0) && fb >= T(0)) {
-          out = located(f, p, fa, fb);
+          out = located(f, p, fa, fb, height);
           return true;
         }
         if (p.ends_at_apex) {
@@ -174,7 +177,7 @@ class integrated_flight {
       const T fa = f(p.t0);
       const T fb = f(p.t1);
       if (fa > T(0) && fb <= T(0)) {
-        out = located(f, p, fa, fb);
+        out = located(f, p, fa, fb, height);
         return true;
       }
       return false;
@@ -219,7 +222,7 @@ class integrated_flight {
       const T fa = f(p.t0);
       const T fb = f(p.t1);
       if (!(fa < T(0) && fb >= T(0))) return short_of(p.y1, distance, out);
-      out = located(f, p, fa, fb);
+      out = located(f, p, fa, fb, distance);
       return true;
     });
     if (!walked) return unexpected<error>(walked.error());
@@ -403,13 +406,51 @@ class integrated_flight {
 
   // Locates the root of f in a piece where f changes sign (fa, fb at its ends) with TOMS
   // 748 (Alefeld, Potra & Shi 1995, Boost.Math) to the full precision of T, and returns
-  // the state there, or time_limit when it lies beyond max_time.
+  // the state there, or time_limit when it lies beyond max_time. `value` is the event's
+  // target (a height or a distance [m]). The state must meet it within
+  // event_tolerance() x (1 m + |value| + its distance from the launch); where no time of T
+  // does (the root's time or an ulp either side), the flight moves farther than that in
+  // one ulp of time at the event, and the answer is no_convergence naming the miss: a
+  // semi-implicit Euler step of 1/60 s at a drag coefficient of 8e11 /m, unstable, grew
+  // the speed to 1e27 m/s within three steps and put a crossing 12 m off its height
+  // (fuzz_flight crash-b86eac39).
   template <class F, class Piece>
-  [[nodiscard]] result<state<T>> located(const F& f, const Piece& p, const T& fa, const T& fb) const {
+  [[nodiscard]] result<state<T>> located(const F& f, const Piece& p, const T& fa, const T& fb,
+                                         const T& value) const {
+    using std::abs;
+    using std::nextafter;
     const result<T> t = root(f, p.t0, p.t1, fa, fb);
     if (!t) return unexpected<error>(t.error());
     if (*t > options_.max_time) return fail(errc::time_limit, "the event lies beyond max_time, at t =", *t);
-    return make_state(*t, p.at(*t));
+    const detail::phase<T> y = p.at(*t);
+    const T tol = event_tolerance() * (T(1) + abs(value) + T(scaled_norm(y.position)));
+    T best = *t;
+    T miss = abs(T(f(best)));
+    if (!(miss <= tol)) {
+      for (const T& s : {T(nextafter(*t, p.t0)), T(nextafter(*t, p.t1))}) {
+        if (!(s >= p.t0 && s <= p.t1)) continue;
+        const T m = abs(T(f(s)));
+        if (m < miss) {
+          best = s;
+          miss = m;
+        }
+      }
+      if (!(miss <= tol))
+        return fail(errc::no_convergence,
+                    "the event cannot be located: the flight moves farther than the event tolerance "
+                    "within one ulp of time (a fixed step too long for this drag?); miss [m]",
+                    miss);
+    }
+    return make_state(best, best == *t ? y : p.at(best));
+  }
+
+  // Relative tolerance of a located event against its size: 2^-30 (about 9.3e-10), or
+  // 1024 ulps where T has fewer digits (float). A well-behaved flight meets it with room:
+  // the root is located to an ulp or two of time, where the state moves by its speed times
+  // that ulp.
+  [[nodiscard]] static T event_tolerance() {
+    using std::max;
+    return max(T(T(1) / T(1LL << 30)), T(1024 * detail::epsilon<T>()));
   }
 
   template <class F>
@@ -630,7 +671,7 @@ class integrated_flight {
       const bool rises_at_end = T(up_.dot(p.y1.velocity)) >= T(0);
       if (branch == side::rising) {
         if (fa < T(0) && fb >= T(0)) {
-          out = located(f, p, fa, fb);
+          out = located(f, p, fa, fb, T(h0_ + dh));
           return true;
         }
         if (rises_at_end && T(up_.dot(p.y0.velocity)) < T(0) && fb > T(0)) {
@@ -640,7 +681,7 @@ class integrated_flight {
         return false;
       }
       if (fa > T(0) && fb <= T(0)) {
-        out = located(f, p, fa, fb);
+        out = located(f, p, fa, fb, T(h0_ + dh));
         return true;
       }
       if (rises_at_end) {
