@@ -75,6 +75,12 @@ struct linear_step_form {
     const W tp1 = W(t * d.phi1);
     return {W(c * tp1), vec3<W>(e * tp1 + gp * W(t * t * phi2(kt, d)))};
   }
+  // dA/dn and dB/dn at real n >= 0: d(t phi1(kt))/dt = e^-kt, d(t^2 phi2(kt))/dt = t phi1(kt).
+  [[nodiscard]] weights slopes(const W& n) const {
+    const W t = W(n * dt);
+    const decay_pair<W> d = decay(W(n * z));
+    return {W(c * dt * d.factor), vec3<W>((e * d.factor + gp * W(t * d.phi1)) * dt)};
+  }
   // v[n] = f^n v0 + b S(n).
   [[nodiscard]] vec3<W> velocity(const W& n, const vec3<W>& v0) const {
     using std::exp;

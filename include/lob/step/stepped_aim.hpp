@@ -20,14 +20,15 @@
 
 namespace lob {
 
-/// An aim for a stepped body: launch point [m], the target's position at launch [m] and
-/// its velocity [m/s] (zero for a fixed target), and the launch speed [m/s].
+/// An aim for a stepped body: launch point [m], the target's position at launch [m], the
+/// launch speed [m/s], and the target's velocity [m/s] (zero, when left out, for a fixed
+/// target; last, because an Eigen vector given as `{}` is left uninitialised).
 template <Real T>
 struct stepped_aim_request {
   vec3<T> launch_point = vec3<T>::Zero();
   vec3<T> target = vec3<T>::Zero();
-  vec3<T> target_velocity = vec3<T>::Zero();
   T speed{};
+  vec3<T> target_velocity = vec3<T>::Zero();
 };
 
 /// One stepped launch through the target: `solution` as for continuous aims
@@ -87,6 +88,13 @@ struct stepped_meeting {
     const auto w = form.at(n);
     return {vec3<W>(offset + drift * n - w.pull), w.launch};
   }
+  // Of the sign of d need2/dn: M.M' A - |M|^2 A' (need2 = |M|^2/A^2, A > 0).
+  [[nodiscard]] W need2_slope(const W& n) const {
+    const auto [m, a] = continued(n);
+    const auto s = form.slopes(n);
+    const vec3<W> m1 = drift - s.pull;
+    return W(W(m.dot(m1)) * a - W(m.squaredNorm()) * s.launch);
+  }
   [[nodiscard]] W need2(const W& n) const {
     const auto [m, a] = continued(n);
     return W(W(m.squaredNorm()) / W(a * a));
@@ -99,37 +107,59 @@ struct stepped_meeting {
     return {vec3<W>(m0 + (m1 - m0) * s), W(a0 + (a1 - a0) * s)};
   }
   // The fraction s in [0, 1] of step j where |M| = u A on the interpolation, the one
-  // nearest `hint`; none if the quadratic has no root there. Q(s) = a s^2 + 2 p s + q with
-  // the numerically stable pair of roots (q/r and r/a, r = -(p + sign(p) sqrt(p^2 - a q)),
-  // common practice).
+  // nearest `hint`; none if there is no root there. First the roots of the quadratic
+  // Q(s) = |M|^2 - u^2 A^2 = a s^2 + 2 p s + q (the numerically stable pair q/r and r/a,
+  // r = -(p + sign(p) sqrt(p^2 - a q)), common practice); then Newton's method on
+  // |M(s)| - u A(s), which keeps its accuracy where Q's coefficients cancel (M small
+  // against its parts: a far target, a fast one), from each of them and from the hint.
   [[nodiscard]] std::optional<W> fraction_in(std::int64_t j, const W& u2, const W& hint) const {
     using std::abs;
     using std::sqrt;
-    const auto [m0, a0] = continued(W(j));
-    const auto [m1, a1] = continued(W(j + 1));
-    const vec3<W> dm = m1 - m0;
-    const W da = W(a1 - a0);
+    const std::pair<vec3<W>, W> c0 = continued(W(j)), c1 = continued(W(j + 1));
+    const vec3<W> m0 = c0.first;
+    const W a0 = c0.second;
+    const vec3<W> dm = c1.first - m0;
+    const W da = W(c1.second - a0);
+    const W u = sqrt(u2);
+    const W eps = std::numeric_limits<W>::epsilon();
+    const W size = W(scaled_norm(m0) + scaled_norm(dm) + u * W(abs(a0) + abs(da)));
+    auto miss = [&](const W& s) { return W(scaled_norm(vec3<W>(m0 + dm * s)) - u * W(a0 + da * s)); };
+    auto polish = [&](W s) -> std::optional<W> {
+      for (int i = 0; i < 12; ++i) {
+        const vec3<W> mm = m0 + dm * s;
+        const W len = scaled_norm(mm);
+        const W slope = W((len > W(0) ? W(W(mm.dot(dm)) / len) : W(0)) - u * da);
+        if (!(slope != W(0)) || !is_finite(slope)) break;
+        const W step = W(W(len - u * W(a0 + da * s)) / slope);
+        W next = W(s - step);
+        next = next < W(0) ? W(0) : (next > W(1) ? W(1) : next);
+        if (next == s) break;
+        s = next;
+        if (abs(step) <= W(4) * eps) break;
+      }
+      if (!(abs(miss(s)) <= W(64) * eps * size)) return std::nullopt;
+      return s;
+    };
+    std::optional<W> candidates[3];
+    candidates[0] = hint >= W(0) && hint <= W(1) ? std::optional<W>(hint) : std::optional<W>(W(1) / W(2));
     const W a = W(W(dm.squaredNorm()) - u2 * da * da);
     const W p = W(W(m0.dot(dm)) - u2 * a0 * da);
     const W q = W(W(m0.squaredNorm()) - u2 * a0 * a0);
     const W disc = W(p * p - a * q);
-    if (!(disc >= W(0))) return std::nullopt;
-    const W r = W(-(p + (p < W(0) ? W(-sqrt(disc)) : W(sqrt(disc)))));
+    if (disc >= W(0)) {
+      const W r = W(-(p + (p < W(0) ? W(-sqrt(disc)) : W(sqrt(disc)))));
+      if (r != W(0)) candidates[1] = W(q / r);
+      if (a != W(0)) candidates[2] = W(r / a);
+    }
     std::optional<W> best;
-    for (const W s : {r != W(0) ? W(q / r) : W(-1), a != W(0) ? W(r / a) : W(-1)}) {
-      if (!(s >= W(0) && s <= W(1))) continue;
-      if (!best || abs(W(s - hint)) < abs(W(*best - hint))) best = s;
+    for (const std::optional<W>& c : candidates) {
+      if (!c || !(*c >= W(-1) / W(8) && *c <= W(9) / W(8))) continue;
+      const std::optional<W> s = polish(*c < W(0) ? W(0) : (*c > W(1) ? W(1) : *c));
+      if (s && (!best || abs(W(*s - hint)) < abs(W(*best - hint)))) best = s;
     }
     return best;
   }
 };
-
-// Steps of the continued path at which the interpolated aim is searched: n = 2^(i/4).
-template <Real W>
-[[nodiscard]] W search_node(int i) {
-  using std::pow;
-  return W(pow(W(2), W(i) / W(4)));
-}
 
 }  // namespace detail
 
@@ -166,7 +196,7 @@ template <Real T>
 /// \code
 ///   lob::engine_step<float> step;                     // 60 Hz, semi-implicit, rational damping
 ///   step.damping = 0.1f;
-///   auto s = lob::aim(step, air, {{0, 0, 1}, {30, 0, 0}, {}, 20.0f});
+///   auto s = lob::aim(step, air, {{0, 0, 1}, {30, 0, 0}, 20.0f});
 ///   if (s && s->flat) body.velocity = s->flat->solution.velocity;
 /// \endcode
 template <Real T>
@@ -175,7 +205,6 @@ template <Real T>
   using W = std::conditional_t<std::is_same_v<T, float>, double, T>;
   using std::abs;
   using std::floor;
-  using std::sqrt;
   if (const status ok = detail::check_stepped_aim(rule, air, req.launch_point, req.target, req.target_velocity); !ok)
     return unexpected<error>(ok.error());
   if (const status ok = detail::check_speed(req.speed); !ok) return unexpected<error>(ok.error());
@@ -191,23 +220,47 @@ template <Real T>
   const W last = W(opts.max_steps);
   auto excess = [&](const W& n) { return W(m.need2(n) - u2); };
 
-  // The least needed speed on the continued path: a coarse scan, then Brent's minimum.
-  int best = -40;
-  W best_need = m.need2(detail::search_node<W>(best));
-  int top = best;
-  for (int i = best + 1; i < 400 && detail::search_node<W>(i) <= last; ++i) {
-    top = i;
-    const W v = m.need2(detail::search_node<W>(i));
-    if (v < best_need) {
-      best_need = v;
-      best = i;
+  // The least needed speed on the continued path (need2 falls, then rises, with n): walk
+  // by factors of sqrt(2) from the vacuum estimate of the flight's steps, downhill, until
+  // it rises, then Brent's minimum in the bracket.
+  using std::sqrt;
+  const W gn = W(scaled_norm(air.gravity));
+  const W dist = scaled_norm(m.offset);
+  const W t0 = gn > W(0) ? W(sqrt(W(2 * dist / gn))) : W(dist / W(req.speed));
+  const W lowest = W(1) / W(1099511627776);  // 2^-40 steps
+  auto clamp = [&](const W& n) { return n < lowest ? lowest : (n > last ? last : n); };
+  const W ratio = sqrt(W(2));
+  W mid = clamp(W(t0 / W(rule.dt)));
+  W f_mid = m.need2(mid);
+  W left = clamp(W(mid / ratio)), right = clamp(W(mid * ratio));
+  W f_left = m.need2(left), f_right = m.need2(right);
+  for (int i = 0; i < 400 && (f_left < f_mid || f_right < f_mid); ++i) {
+    if (f_left < f_mid && left > lowest) {
+      right = mid, f_right = f_mid, mid = left, f_mid = f_left;
+      left = clamp(W(mid / ratio)), f_left = m.need2(left);
+    } else if (f_right < f_mid && right < last) {
+      left = mid, f_left = f_mid, mid = right, f_mid = f_right;
+      right = clamp(W(mid * ratio)), f_right = m.need2(right);
+    } else {
+      break;  // the least need lies at an end of the searched steps
     }
   }
-  std::uintmax_t iters = opts.max_iterations;
-  const auto least = boost::math::tools::brent_find_minima(
-      [&](const W& n) { return m.need2(n); }, detail::search_node<W>(best - 1),
-      detail::search_node<W>(best < top ? best + 1 : best), std::numeric_limits<W>::digits / 2, iters);
-  const W n_least = least.first;
+  // The least need: where its slope changes sign, to full precision (Brent's minimum stops
+  // at half of it, too coarse where a passing target makes the dip sharp).
+  auto slope = [&](const W& n) { return m.need2_slope(n); };
+  W n_least = mid;
+  const W s_left = slope(left), s_right = slope(right);
+  if (s_left < W(0) && s_right > W(0)) {
+    const result<W> r = detail::bracketed_root(slope, left, right, s_left, s_right, opts.max_iterations,
+                                               "stepped aim: least-speed step did not converge");
+    if (!r) return unexpected<error>(r.error());
+    n_least = *r;
+  } else if (!(s_left < W(0))) {
+    n_least = left;
+  } else {
+    n_least = right;
+  }
+  const std::pair<W, W> least{n_least, m.need2(n_least)};
   if (!(least.second <= u2)) {
     error e(errc::out_of_reach, "no step count meets the target at this speed; least speed needed",
             static_cast<long double>(sqrt(least.second)));
@@ -234,7 +287,7 @@ template <Real T>
     // drop) is large against a small M; taking the direction of M at exactly speed u
     // moves the meeting point by no more than that rounding.
     const W len = scaled_norm(mm);
-    const vec3<W> v0 = len > W(0) ? vec3<W>(mm * W(W(req.speed) / len)) : vec3<W>(mm / a);
+    const vec3<W> v0 = len > W(0) ? vec3<W>(vec3<W>(mm / len) * W(req.speed)) : vec3<W>(mm / a);
     stepped_aim<T> out;
     out.step = j + 1;
     out.fraction = T(s);
@@ -253,6 +306,8 @@ template <Real T>
     sol.descent_angle = -frame->elevation_of(sol.arrival.velocity);
     if (!is_finite(sol.velocity) || !is_finite(sol.arrival.velocity))
       return fail(errc::invalid_argument, "the stepped aim overflows T at step", out.step);
+    if (!(abs(W(W(sol.speed) - W(req.speed))) <= W(64) * std::numeric_limits<T>::epsilon() * W(req.speed)))
+      return fail(errc::invalid_argument, "speed too small: the launch velocity underflows T; speed", req.speed);
     return out;
   };
 
