@@ -41,3 +41,5 @@
 #include "lob/step/linear_step_form.hpp"
 #include "lob/step/stepped_flight.hpp"
 #include "lob/step/stepped_aim.hpp"
+#include "lob/batch/columns.hpp"
+#include "lob/batch/batch_states.hpp"
