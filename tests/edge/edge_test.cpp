@@ -302,6 +302,65 @@ TEST_CASE("a fixed-step crossing is at its height or an error") {
   CHECK(c->position.z() == doctest::Approx(445.50621805142282).epsilon(1e-12));
 }
 
+// fuzz_flight reproducer crash-8820781d: a user model of linear drag at a rate of 1e300 /s,
+// gravity 1e6 m/s^2, a fixed step of 1e6 s and a launch at a denormal speed. The first
+// semi-implicit Euler step ends at a finite state (1e12 m/s down, 1e18 m below), but the
+// drag there overflows: the Hermite interpolant had an infinite slope and the crossing
+// 0.005 s after the launch (about 50 m down) came back with an infinite velocity in the
+// clang ASan + UBSan fuzzer build. Every query is now an error or finite.
+TEST_CASE("a fixed step whose end state's drag overflows is an error, never an infinite state") {
+  lob::medium<D> air;
+  air.gravity = vec3<D>(0, 0, -1e6);
+  const lob::shot<D> launch{vec3<D>(3.702601663233386, -0.3913939116502636, 9.8333714808880757),
+                            vec3<D>(-0.0, -0.0, -smallest_denormal)};
+  for (const lob::stepper method : {lob::stepper::semi_implicit_euler, lob::stepper::rk4}) {
+    lob::flight_options<D> o;
+    o.method = method;
+    o.fixed_step = 1e6;
+    o.max_steps = 22;
+    o.max_time = 1e5;
+    const auto f = lob::fly(plain_drag{1e300}, air, launch, o);
+    REQUIRE(f);
+    for (const D h : {-40.0, 0.0, 9.0, -1e6}) {
+      for (const lob::side branch : {lob::side::rising, lob::side::falling}) {
+        const auto c = f->crossing(h, branch);
+        if (c) {
+          CHECK(finite_state(*c));
+          continue;
+        }
+        CHECK(c.error() != lob::errc::invalid_argument);
+        if (branch == lob::side::falling) CHECK(c.error() == lob::errc::no_convergence);
+      }
+    }
+    const auto land = f->landing(-40.0);
+    REQUIRE_FALSE(land);
+    if (method == lob::stepper::semi_implicit_euler) CHECK(says(land.error(), "acceleration overflows"));
+    for (const D t : {0.005, 1.0, 5e4}) {
+      const auto s = f->at(t);
+      if (s) CHECK(finite_state(*s));
+      else CHECK(s.error() == lob::errc::no_convergence);
+    }
+    std::array<lob::state<D>, 4> buffer{};
+    const auto n = f->sample(buffer, 1.0);
+    if (n) {
+      for (const lob::state<D>& s : buffer) CHECK(finite_state(s));
+    } else {
+      CHECK(n.error() == lob::errc::no_convergence);
+    }
+  }
+  // The same step under a drag rate it can carry (1e-6 /s: the step times the rate is 1)
+  // is located at its height within the flight's event tolerance (2^-30 of its size).
+  lob::flight_options<D> o;
+  o.method = lob::stepper::semi_implicit_euler;
+  o.fixed_step = 1e6;
+  const auto mild = lob::fly(plain_drag{1e-6}, air, launch, o);
+  REQUIRE(mild);
+  const auto c = mild->landing(-40.0);
+  REQUIRE(c);
+  CHECK(finite_state(*c));
+  CHECK(std::abs(c->position.z() + 40.0) <= 1e-9 * (1 + 40.0 + (c->position - launch.position).norm()));
+}
+
 // fuzz_physics reproducer crash-390c0a70: a denormal pressure gave a humid-air density of 0
 // as success (p M0 / (R* T) underflows).
 TEST_CASE("a humid-air density that rounds to zero is an error naming the pressure") {
@@ -373,6 +432,46 @@ TEST_CASE("aims straight above or below on integrated models meet their toleranc
     check_model(plain_drag{}, lob::medium<D>{}, from, vec3<D>(from + vec3<D>(0, 0, dz)), 20.0);
   }
   CHECK(checked == 38);
+}
+
+// fuzz_solve reproducer crash-1a6c8e1a: quadratic drag 1e12 /m on RK4 steps of 1/60 s (far
+// beyond the step's stability) and an aim at speed 1 to a target 2600 m away: a trial
+// flight's distance event, located between two finite steps, had an infinite velocity, and
+// the aim returned it as its lofted solution (time of flight 2.3e-74 s, arrival velocity
+// inf). Every success is now finite and passes the target when flown forward.
+TEST_CASE("an aim on unstable fixed steps is an error or a finite solution that passes") {
+  lob::solve_options<D> o;
+  o.flight.method = lob::stepper::rk4;
+  o.flight.max_steps = 26;
+  o.flight.relative_tolerance = 1e-9;
+  o.max_iterations = 19;
+  o.max_azimuth_iterations = 4;
+  o.max_total_steps = 5900;
+  const vec3<D> from(777.19899999999996, -0.0017246985835198533, 931.02922102693219);
+  const vec3<D> to(-1000, -1000, -1000);
+  const lob::quadratic_drag<D> drag{1e12};
+  const D tol = 64 * std::numeric_limits<D>::epsilon() * ((to - from).norm() + 1);
+  const auto r = lob::aim(drag, lob::medium<D>{}, lob::aim_request<D>{from, to, 1.0}, o);
+  if (!r) {
+    CHECK(r.error() != lob::errc::invalid_argument);
+  } else {
+    for (const std::optional<lob::aim_solution<D>>& branch : {r->flat, r->lofted}) {
+      if (!branch) continue;
+      CHECK(std::isfinite(branch->time_of_flight));
+      CHECK(finite_state(branch->arrival));
+      CHECK(lob::is_finite(branch->velocity));
+      const auto f = lob::fly(drag, lob::medium<D>{}, lob::shot<D>{from, branch->velocity}, o.flight);
+      REQUIRE(f);
+      const auto at = f->at(branch->time_of_flight);
+      REQUIRE(at);
+      CHECK((at->position - to).norm() <= tol);
+    }
+  }
+  const auto least = lob::least_speed(drag, lob::medium<D>{}, lob::target_request<D>{from, to}, o);
+  if (least) {
+    CHECK(finite_state(least->arrival));
+    CHECK(std::isfinite(least->time_of_flight));
+  }
 }
 
 TEST_CASE("an aim at extreme drag passes within its documented tolerance or is an error") {

@@ -46,7 +46,9 @@ namespace lob {
 /// cubic Hermite interpolant between steps. A located crossing or distance is at its
 /// height or distance within 2^-30 (about 9.3e-10; 1024 ulps for float) of 1 m + that
 /// value + its distance from the launch, else `no_convergence` (the flight moves farther
-/// in one ulp of time: an unstable fixed step whose state grows without bound).
+/// in one ulp of time: an unstable fixed step whose state grows without bound). No answer
+/// is inf or NaN: a fixed step whose end state's acceleration overflows T, or a state
+/// between two finite steps that overflows (at(), sample(), an event), is `no_convergence`.
 ///
 /// Models with `model_traits<M>::quadratic_fast_path` (quadratic drag) answer `apex()`,
 /// `crossing()`, `landing()`, `range()` and (but for a vertical launch) `at()` and
@@ -93,7 +95,7 @@ class integrated_flight {
     result<state<T>> out = fail(errc::no_convergence, "time was not reached");
     const status walked = walk([&](const auto& p) {
       if (t > p.t1) return false;
-      out = make_state(t, p.at(t));
+      out = checked_state(t, p.at(t));
       return true;
     });
     if (!walked) return unexpected<error>(walked.error());
@@ -115,7 +117,7 @@ class integrated_flight {
     result<state<T>> out = fail(errc::no_convergence, "apex was not reached");
     const status walked = walk([&](const auto& p) {
       if (!p.ends_at_apex) return false;
-      out = make_state(p.t1, p.y1);
+      out = checked_state(p.t1, p.y1);
       return true;
     });
     if (!walked) return unexpected<error>(walked.error());
@@ -169,7 +171,7 @@ class integrated_flight {
           return true;
         }
         if (top == dh) {
-          out = make_state(p.t1, p.y1);
+          out = checked_state(p.t1, p.y1);
           return true;
         }
         return false;
@@ -239,6 +241,7 @@ class integrated_flight {
     const std::size_t n = out.size();
     if (n == 0) return std::size_t{0};
     std::size_t i = 0;
+    status overflow{};
     const auto time_of = [&](std::size_t j) {
       return n == 1 ? T(0) : T(t_end * T(static_cast<long long>(j)) / T(static_cast<long long>(n - 1)));
     };
@@ -246,12 +249,18 @@ class integrated_flight {
       while (i < n) {
         const T t = i + 1 == n ? t_end : time_of(i);
         if (t > p.t1) return false;
-        out[i] = make_state(t, p.at(t));
+        const result<state<T>> s = checked_state(t, p.at(t));
+        if (!s) {
+          overflow = unexpected<error>(s.error());
+          return true;
+        }
+        out[i] = *s;
         ++i;
       }
       return true;
     });
     if (!walked) return unexpected<error>(walked.error());
+    if (!overflow) return unexpected<error>(overflow.error());
     return n;
   }
 
@@ -393,6 +402,19 @@ class integrated_flight {
     return s;
   }
 
+  // make_state for an answer: a state between two finite step ends can still overflow T
+  // (an interpolant's slope term is a step length times an acceleration, and a launch
+  // point near the top of T's range plus the displacement can round to infinity), and
+  // a success is never inf or NaN. A semi-implicit Euler step of 1e6 s under a drag rate
+  // of 1e300 /s ended at a finite state whose acceleration overflowed, and the crossing
+  // in that step had an infinite velocity (fuzz_flight crash-8820781d).
+  [[nodiscard]] result<state<T>> checked_state(const T& t, const detail::phase<T>& y) const {
+    const state<T> s = make_state(t, y);
+    if (!is_finite(s.position) || !is_finite(s.velocity))
+      return fail(errc::no_convergence, "the state overflows T between two steps at t =", t);
+    return s;
+  }
+
   [[nodiscard]] T horizontal_distance(const vec3<T>& position) const {
     using std::sqrt;
     return level_distance(vec3<T>(position - launch_.position));
@@ -441,7 +463,7 @@ class integrated_flight {
                     "within one ulp of time (a fixed step too long for this drag?); miss [m]",
                     miss);
     }
-    return make_state(best, best == *t ? y : p.at(best));
+    return checked_state(best, best == *t ? y : p.at(best));
   }
 
   // Relative tolerance of a located event against its size: 2^-30 (about 9.3e-10), or
@@ -613,6 +635,8 @@ class integrated_flight {
     const bool rk4 = options_.method == stepper::rk4;
     detail::phase<T> y = y0_;
     detail::phase<T> fy = detail::derivative(f, y);
+    if (!is_finite(fy.velocity))
+      return fail(errc::invalid_argument, "gravity plus the drag at the launch overflows T; |g| =", g_);
     bool before_apex = apex_pending_;
     for (std::int64_t n = 0;; ++n) {
       // Step times from the step count, never by summing h, so that they do not drift.
@@ -631,6 +655,11 @@ class integrated_flight {
         return fail(errc::no_convergence,
                     "the fixed step is unstable for this drag: the state overflows at t =", t0);
       const detail::phase<T> f1 = detail::derivative(f, y1);
+      // A finite state whose drag overflows (a step of 1e6 s under a drag rate of 1e300 /s)
+      // has no next step and no interpolant: the Hermite slopes would be infinite.
+      if (!is_finite(f1.velocity))
+        return fail(errc::no_convergence,
+                    "the fixed step is unstable for this drag: the acceleration overflows at t =", t1);
       const detail::hermite_piece<T> curve(t0, h, y, fy, y1, f1);
       if (before_apex && !(T(up_.dot(y1.velocity)) > T(0))) {
         const auto climb = [&](const T& s) { return T(up_.dot(curve(s).velocity)); };
