@@ -545,6 +545,40 @@ TEST_CASE("a slow aim from far above flies at the asked speed and passes its tar
   CHECK(flown == 8);
 }
 
+// The closed-form intercept launched along M(t)/tau, whose length is the asked speed only
+// to the rounding of M (the same cancellation as the aim above): a receiver 5e7 m below a
+// speed-1 launch, moving at 0.56 m/s, was met at 1 - 7e-12 m/s. It now launches along M at
+// exactly the asked speed and, flown forward, meets the receiver within the aim's default
+// tolerance (64 ulp of the distance + 1 m).
+TEST_CASE("a slow intercept from far above flies at the asked speed and meets its receiver") {
+  const D eps = std::numeric_limits<D>::epsilon();
+  const lob::medium<D> air{};
+  const vec3<D> from(-726.52780956740673, -996.12420843823907, 50529816.674366571);
+  const lob::receiver<D> boat{vec3<D>(-1000, -1000, -1000), vec3<D>(0.5, -0.25, 0)};
+  lob::intercept_options<D> io;
+  io.samples = 100000;  // the meetings lie within 0.2 s of each other, 3210 s after launch
+  int flown = 0;
+  const auto check = [&](const auto& model) {
+    const auto r = lob::intercept(model, air, lob::intercept_request<D>{from, boat, 1.0, 0.0}, io);
+    REQUIRE(r);
+    for (const auto& s : {r->earliest, r->latest}) {
+      REQUIRE(s);
+      CHECK(std::abs(s->speed - 1.0) <= 4 * eps);
+      const vec3<D> where = boat.position + boat.velocity * s->time_of_flight;
+      const D tol = 64 * eps * ((where - from).norm() + 1);
+      const auto f = lob::fly(model, air, lob::shot<D>{from, s->velocity});
+      REQUIRE(f);
+      const auto at = f->at(s->time_of_flight);
+      REQUIRE(at);
+      CHECK((at->position - where).norm() <= tol);
+      ++flown;
+    }
+  };
+  check(lob::vacuum<D>{});
+  check(lob::linear_drag<D>{1e-6});
+  CHECK(flown == 4);
+}
+
 TEST_CASE("farthest elevation far from the origin reports the range its answer flies") {
   const lob::medium<D> air{};
   const lob::quadratic_drag<D> drag{0.01};

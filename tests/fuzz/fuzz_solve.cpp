@@ -4,7 +4,7 @@
 // checked: every number of a success is finite; an aim, a speed for an elevation and a
 // least speed, flown forward, pass their target within the documented tolerance
 // (lob/solve/aim.hpp: solve_options::tolerance, default 64 ulp of |target - launch| + 1 m);
-// aims fly at the asked speed; a farthest shot lands at its height and no sampled
+// aims and intercepts fly at the asked speed; a farthest shot lands at its height and no sampled
 // elevation lands farther; an aim over an obstacle clears it; no call takes longer than
 // fuzz::call_budget_seconds. Solver calls are kept bounded by small iteration and step
 // budgets.
@@ -116,8 +116,12 @@ void solve_all(const M& model, const lob::medium<double>& air, const lob::solve_
       const lob::intercept_request<double> q{from, {to, in.vec(-20, 20)}, speed, in.maybe(0, 30)};
       const auto r = fuzz::timed("intercept", [&] { return lob::intercept(model, air, q, io); });
       if (!r) return;
-      for (const auto& s : {r->earliest, r->latest})
-        if (s) FUZZ_CHECK(finite(*s), "intercept: a meeting is not finite (time %.17g)", s->time_of_flight);
+      for (const auto& s : {r->earliest, r->latest}) {
+        if (!s) continue;
+        FUZZ_CHECK(finite(*s), "intercept: a meeting is not finite (time %.17g)", s->time_of_flight);
+        FUZZ_CHECK(std::abs(s->speed - speed) <= 1e-12 * speed, "intercept: meeting speed %.17g, asked %.17g",
+                   s->speed, speed);
+      }
       if (r->earliest && r->latest)
         FUZZ_CHECK(r->earliest->time_of_flight <= r->latest->time_of_flight, "intercept: earliest %.17g > latest %.17g",
                    r->earliest->time_of_flight, r->latest->time_of_flight);
