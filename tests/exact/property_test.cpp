@@ -178,3 +178,23 @@ TEST_CASE("every landing state lies on the path at its time and at the asked hei
   MESSAGE("max horizontal mismatch between at(t) and landing(), relative to its scale: " << worst);
   CHECK(worst <= 1e-14);
 }
+
+TEST_CASE("at(t) without checks only where the state cannot overflow") {
+  // linear_flight answers at(t) unchecked up to a horizon where |x0| + |v0| t + |pull| t^2
+  // stays below max/16; beyond it the checked path must still refuse an overflow.
+  const lob::medium<double> air{};
+  const auto fast = lob::linear_flight<double>::make(0.0, air, lob::shot<double>{{0, 0, 0}, {1e150, 0, 1e150}});
+  REQUIRE(fast);
+  CHECK(fast->at(1.0));
+  const auto far = fast->at(1e160);
+  REQUIRE(!far);
+  CHECK(far.error() == lob::errc::invalid_argument);
+  lob::medium<double> faint{};
+  faint.gravity = lob::vec3<double>(0, 0, -1e-300);
+  const auto slow = lob::linear_flight<double>::make(0.0, faint, lob::shot<double>{});
+  REQUIRE(slow);
+  const auto late = slow->at(1e200);  // t^2 overflows even though g t^2 would not
+  if (late) CHECK(lob::is_finite(late->position));
+  const auto later = slow->at(1e300);
+  if (later) CHECK(lob::is_finite(later->position));
+}

@@ -69,6 +69,9 @@ class linear_flight {
   /// The state at time `t` [s] after launch, t >= 0 and finite. Errors: `invalid_argument`
   /// for a negative or non-finite time, or a time so late that the state overflows T.
   [[nodiscard]] result<state<T>> at(const T& t) const {
+    // Up to safe_time_ (found at construction) the state cannot leave the range of T and
+    // the cap cannot be passed: no checks on the hot path.
+    if (t >= T(0) && t <= safe_time_) return state_at(t);
     if (!is_finite(t) || t < T(0))
       return fail(errc::invalid_argument, "time must be finite and >= 0", t);
     return checked(state_at(t));
@@ -215,12 +218,31 @@ class linear_flight {
     G_ = g_ - k_ * w_;
     pull_ = air.gravity + k_ * air.wind;
     has_side_wind_ = k_ > T(0) && wind_h_.squaredNorm() > T(0);
+    safe_time_ = safe_time(max_time);
     falls_ = g_ > T(0) && (k_ == T(0) || G_ > T(0));
     if (falls_) {
       inv_G_ = T(1) / G_;
       inv_k_ = k_ > T(0) ? T(T(1) / k_) : T(0);
       vertical_constants();
     }
+  }
+
+  // A time up to which every state is finite: |x(t)| <= |x0| + |v0| t + |pull| t^2 and
+  // |v(t)| <= |v0| + |pull| t (e^-kt, phi1 <= 1, phi2 <= 1/2; max norms): with t, |v0| t,
+  // |pull| t^2 and t^2 below a sixteenth of the largest T, so is every term (|pull| t <=
+  // |pull| t^2 + 1); capped by max_time.
+  [[nodiscard]] T safe_time(const T& max_time) const {
+    using std::sqrt;
+    const T big = std::numeric_limits<T>::max() / T(16);
+    const T a = launch_.position.cwiseAbs().maxCoeff();
+    const T b = launch_.velocity.cwiseAbs().maxCoeff();
+    const T c = pull_.cwiseAbs().maxCoeff();
+    if (!(a < big) || !(b < big) || !(c < big)) return T(-1);
+    T t = max_time;
+    if (T(sqrt(big)) < t) t = T(sqrt(big));  // t^2 itself stays finite
+    if (b > T(0) && T(big / b) < t) t = T(big / b);
+    if (c > T(0) && T(sqrt(big) / sqrt(c)) < t) t = T(sqrt(big) / sqrt(c));
+    return t;
   }
 
   // The apex of the vertical motion v(t) = -G/k + (v + G/k) e^-kt (v = climb0()): at
@@ -271,6 +293,13 @@ class linear_flight {
   [[nodiscard]] vec3<T> drift(const T& t) const { return drift(t, detail::decay(T(k_ * t))); }
 
   [[nodiscard]] state<T> state_at(const T& t) const {
+    if (k_ == T(0)) {  // vacuum: the values below at phi1 = 1, phi2 = 1/2, without the series
+      state<T> s;
+      s.time = t;
+      s.position = launch_.position + launch_.velocity * t + pull_ * T(t * t / 2);
+      s.velocity = launch_.velocity + pull_ * t;
+      return s;
+    }
     const T z = k_ * t;
     const detail::decay_pair<T> d = detail::decay(z);
     const T p2 = detail::phi2(z, d);
@@ -588,6 +617,7 @@ class linear_flight {
   medium<T> air_;
   shot<T> launch_;
   T max_time_;  // [s]: events after it are time_limit, as for integrated flights
+  T safe_time_{-1};  // [s]: at(t) needs no checks for 0 <= t <= safe_time_
   T g_{};
   vec3<T> up_;
   T w_{};   // vertical wind
