@@ -10,6 +10,7 @@
 #include <limits>
 #include <optional>
 #include <span>
+#include <string_view>
 
 #include "lob/lob.hpp"
 
@@ -454,6 +455,8 @@ TEST_CASE("an aim on unstable fixed steps is an error or a finite solution that 
   const auto r = lob::aim(drag, lob::medium<D>{}, lob::aim_request<D>{from, to, 1.0}, o);
   if (!r) {
     CHECK(r.error() != lob::errc::invalid_argument);
+    // The error says why: no trial flight got through (it said the peak search failed).
+    CHECK(std::string_view(r.error().message()).find("unstable") != std::string_view::npos);
   } else {
     for (const std::optional<lob::aim_solution<D>>& branch : {r->flat, r->lofted}) {
       if (!branch) continue;
@@ -468,6 +471,7 @@ TEST_CASE("an aim on unstable fixed steps is an error or a finite solution that 
     }
   }
   const auto least = lob::least_speed(drag, lob::medium<D>{}, lob::target_request<D>{from, to}, o);
+  if (!least) CHECK(std::string_view(least.error().message()).find("unstable") != std::string_view::npos);
   if (least) {
     CHECK(finite_state(least->arrival));
     CHECK(std::isfinite(least->time_of_flight));
@@ -705,4 +709,125 @@ TEST_CASE("hodograph-path solves at extreme drag draw their real cost from the b
   };
   CHECK(charge(1.0) == lob::step_pool::fast_query_cost);
   CHECK(charge(1e300) > 50 * lob::step_pool::fast_query_cost);
+}
+
+// fuzz_flight reproducer crash-917dcc09: quadratic drag 1e-300 /m in still air, a launch at
+// 1e154 m/s (v^2 = 0.55 of the largest double, so fly() takes it). On the hodograph path
+// the rates near v^2 overflowed in the Gauss sums: at(1e-300) had a rise of -inf as
+// success. Launches above sqrt(largest)/16 now fly on the integrated path, and a
+// hodograph answer that is not finite is an error.
+TEST_CASE("a launch near the square root of the largest double is an error or a finite state") {
+  lob::medium<D> air;
+  air.gravity = vec3<D>(0, 0, -9.80665);
+  const lob::shot<D> launch{vec3<D>(9.9218738078889146, 9.9902342259861143, -8.0474555580987257),
+                            vec3<D>(-5.8203282741971803e+152, -6.8574875666566923e+151, -9.982811992331275e+153)};
+  for (const bool fast : {true, false}) {
+    lob::flight_options<D> o;
+    o.use_fast_paths = fast;
+    o.max_steps = 34;
+    const auto f = lob::fly(lob::quadratic_drag<D>{1e-300}, air, launch, o);
+    REQUIRE(f);
+    for (const D t : {D(1e-300), D(1e-150), D(1)}) {
+      const auto s = f->at(t);
+      if (s) CHECK(finite_state(*s));
+    }
+    for (const auto& s : {f->apex(), f->landing(0.0), f->at_distance(1.0)})
+      if (s) CHECK(finite_state(s.value()));
+  }
+  // The hodograph functions refuse such a launch themselves.
+  const auto p = lob::detail::hodograph_at_time(D(1e-300), D(9.80665), D(1e154), D(-1.5), D(1e-300));
+  REQUIRE_FALSE(p);
+  CHECK(p.error() == lob::errc::invalid_argument);
+}
+
+// fuzz_flight reproducer crash-8e092c8b: no drag, semi-implicit Euler with a step of
+// 0.976 s and 6.25 m/s up, so the first step already ends 3.2 m below the launch. The
+// apex was the zero of the interpolated velocity, 1.4 m below the launch on the
+// interpolated path; it is now the top of that path, at or above the launch.
+TEST_CASE("the apex of a coarse fixed-step flight is the top of its interpolated path") {
+  lob::medium<D> air;
+  air.gravity = vec3<D>(0, -9.80665, 0);
+  const lob::shot<D> launch{vec3<D>(-8.27, 6.84, 9.93), vec3<D>(-11.06, 6.25, -222.3)};
+  for (const lob::stepper method : {lob::stepper::semi_implicit_euler, lob::stepper::rk4}) {
+    for (const D step : {D(0.976), D(0.3), D(1.0 / 60)}) {
+      lob::flight_options<D> o;
+      o.method = method;
+      o.fixed_step = step;
+      o.max_time = 100;
+      CAPTURE(step);
+      const auto f = lob::fly(plain_drag{0}, air, launch, o);
+      REQUIRE(f);
+      const auto top = f->apex();
+      REQUIRE(top);
+      const D h_top = top->position.y();
+      CHECK(h_top >= launch.position.y());
+      // No step end lies higher, and neither does the interpolated path around the apex in
+      // the step where the velocity turns (before it, semi-implicit Euler's cubics may bulge:
+      // their end slopes are the new velocities, not the mean rate of the step).
+      const D t_top = top->time;
+      for (int n = 0; n <= 12; ++n) {
+        const auto s = f->at(D(n) * step);
+        REQUIRE(s);
+        CHECK(s->position.y() <= h_top);
+      }
+      const D turn_start = std::floor(t_top / step) * step;
+      for (int i = 0; i <= 100; ++i) {
+        const auto s = f->at(turn_start + D(i) * step / 100);
+        REQUIRE(s);
+        CHECK(s->position.y() <= h_top + 1e-12 * (1 + std::abs(h_top)));
+      }
+      // A fine step puts the top where the vacuum flight has it: 6.25^2 / (2 g) = 1.99 m up
+      // (semi-implicit Euler overshoots by about v h / 2, RK4 is exact for constant gravity
+      // but for the interpolant).
+      if (step < 0.1) CHECK(h_top - launch.position.y() == doctest::Approx(6.25 * 6.25 / (2 * 9.80665)).epsilon(0.03));
+    }
+  }
+}
+
+// The terminal speed of linear plus quadratic drag at rates whose square overflows: it was
+// 0 above 1.3e154 /s. The root of c v^2 + k v = g is then g / k to the last digit (the
+// quadratic term is below 1e-300 of the linear one).
+TEST_CASE("linear plus quadratic terminal speed at rates whose square overflows") {
+  const D g = 9.80665;
+  for (const D k : {D(1e155), D(1e200), D(1e300), D(1.7e308)}) {
+    CAPTURE(k);
+    const D v = lob::linear_quadratic_drag<D>{k, 1e-3}.terminal_speed(g);
+    CHECK(v > 0);
+    CHECK(v == doctest::Approx(g / k).epsilon(1e-15));
+  }
+  // Unchanged where the square is fine: the quadratic limit sqrt(g / c) and a mixed case
+  // against the textbook root (-k + sqrt(k^2 + 4 c g)) / (2 c) (common practice).
+  CHECK(lob::linear_quadratic_drag<D>{1e-300, 1e-2}.terminal_speed(g) == doctest::Approx(std::sqrt(g / 1e-2)).epsilon(1e-15));
+  CHECK(lob::linear_quadratic_drag<D>{0.1, 0.01}.terminal_speed(g) ==
+        doctest::Approx((-0.1 + std::sqrt(0.01 + 4 * 0.01 * g)) / (2 * 0.01)).epsilon(1e-14));
+  CHECK(std::isinf(lob::linear_quadratic_drag<D>{0, 0}.terminal_speed(g)));
+}
+
+// fuzz_step reproducer crash-cdb861f3: steps of 1e-12 s with a quadratic term of 6.5e11 /m
+// (k |v| dt = 100, so each step reverses the velocity and multiplies it by 99) throw the
+// body out to 1e306 m within a few steps, as the engine's own loop does. The crossing of
+// -50 m between two such steps came back at height 0 (p + up (h - up.p) lost h beside
+// 1e306); along an axis-aligned "up" it is now at exactly the asked height.
+TEST_CASE("a stepped crossing between steps far out is at the asked height") {
+  lob::engine_step<D> rule;
+  rule.dt = 1e-12;
+  rule.order = lob::euler_order::position_first;
+  rule.rule = lob::damping_rule::power;
+  rule.damping = 4.5777065690089265e-05;
+  rule.gravity = lob::gravity_timing::before_damping;
+  rule.quadratic = 648283108498.10864;
+  lob::medium<D> air;
+  air.gravity = vec3<D>(0, -9.80665, 0);
+  const lob::shot<D> launch{vec3<D>(0, 160168720617.21802, -smallest_denormal), vec3<D>(142.4086201193891, -1e-12, -60)};
+  const auto f = lob::fly(rule, air, launch);
+  REQUIRE(f);
+  int found = 0;
+  for (const lob::side branch : {lob::side::rising, lob::side::falling}) {
+    const auto c = f->crossing(-50.0, branch);
+    if (!c) continue;
+    ++found;
+    CHECK(c->point.position.y() == -50.0);
+    CHECK(lob::is_finite(c->point.position));
+  }
+  CHECK(found > 0);  // the falling branch passes -50 m (the body is thrown out past it)
 }

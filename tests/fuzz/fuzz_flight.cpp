@@ -29,8 +29,7 @@ void check_state(const char* what, const lob::result<lob::state<double>>& s) {
 }
 
 template <class Flight>
-void query(const Flight& f, const lob::medium<double>& air, const lob::shot<double>& launch, bool f_is_fixed_step,
-           fuzz::input& in) {
+void query(const Flight& f, const lob::medium<double>& air, const lob::shot<double>& launch, fuzz::input& in) {
   const double g = air.gravity.norm();
   const double h0 = g > 0 ? lob::height(launch.position, air) : 0.0;
 
@@ -41,9 +40,7 @@ void query(const Flight& f, const lob::medium<double>& air, const lob::shot<doub
 
   const auto apex = fuzz::timed("apex", [&] { return f.apex(); });
   check_state<Flight>("apex", apex);
-  // found: a fixed step longer than the rise puts the apex below the launch (FINDINGS F11).
-  const bool coarse_steps = fuzz::guards && f_is_fixed_step;
-  if (apex && !coarse_steps) {
+  if (apex) {
     const double top = lob::height(apex->position, air);
     FUZZ_CHECK(top >= h0 - event_rtol * size_of(*apex, launch, h0), "apex height %.17g below launch %.17g", top,
                h0);
@@ -131,7 +128,7 @@ void fly_and_query(const M& model, const lob::medium<double>& air, const lob::sh
     FUZZ_CHECK(fuzz::finite(*r) && *r >= 0, "range(%.17g) = %.17g", h, *r);
     if constexpr (!std::is_same_v<M, lob::vacuum<double>>) no_farther_than_vacuum(model, air, launch, o, h, *r);
   }
-  query(*f, air, launch, !lob::model_traits<M>::closed_form && o.method != lob::stepper::adaptive, in);
+  query(*f, air, launch, in);
 }
 
 lob::shot<double> launch_of(fuzz::input& in) {
@@ -162,9 +159,6 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
       launch.position.x(), launch.position.y(), launch.position.z(), launch.velocity.x(), launch.velocity.y(),
       launch.velocity.z(), static_cast<int>(o.method), o.relative_tolerance, o.fixed_step,
       static_cast<long long>(o.max_steps), o.max_time, o.use_fast_paths ? 1 : 0);
-  // known: integrated flights at launch speeds near 1e154 (|v|^2 near the largest double)
-  // give non-finite states (FINDINGS F13).
-  if (fuzz::guards && model >= 2 && !(launch.velocity.cwiseAbs().maxCoeff() < 1e150)) return 0;
   switch (model) {
     case 0: fly_and_query(lob::vacuum<double>{}, air, launch, o, in); break;
     case 1: fly_and_query(lob::linear_drag<double>{a}, air, launch, o, in); break;

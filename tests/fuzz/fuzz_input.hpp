@@ -214,14 +214,6 @@ auto timed(const char* what, F&& f) {
   return r;
 }
 
-// The `// known:` and `// found:` guards skip inputs of a reported bug; building with
-// -DLOB_FUZZ_NO_GUARDS turns them all off, to see which bugs are still there.
-#ifdef LOB_FUZZ_NO_GUARDS
-inline constexpr bool guards = false;
-#else
-inline constexpr bool guards = true;
-#endif
-
 inline bool finite(double x) { return std::isfinite(x); }
 inline bool finite(const lob::vec3<double>& v) { return lob::is_finite(v); }
 inline bool finite(const lob::state<double>& s) { return finite(s.time) && finite(s.position) && finite(s.velocity); }

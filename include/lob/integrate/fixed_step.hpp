@@ -57,6 +57,15 @@ class hermite_piece {
     return vec3<T>(w.h00 * y0_.position + w.h10 * f0_.position + w.h01 * y1_.position + w.h11 * f1_.position);
   }
 
+  /// The slope of the interpolated position at time `t`: the velocities at the ends, but
+  /// between them not the interpolated velocity (the two cubics differ by the step's error).
+  [[nodiscard]] vec3<T> position_slope(const T& t) const {
+    const T s = (t - t0_) / h_;
+    const T s2 = s * s;
+    return vec3<T>(T(T(6) * (s2 - s) / h_) * vec3<T>(y0_.position - y1_.position) +
+                   T(T(3) * s2 - T(4) * s + T(1)) * f0_.position + T(T(3) * s2 - T(2) * s) * f1_.position);
+  }
+
   [[nodiscard]] phase<T> operator()(const T& t) const {
     const weights w = basis(t);
     phase<T> y;

@@ -918,6 +918,16 @@ template <Real T>
   return vertical_point(hodograph_point<T>{T(t_top + f.time), T(0), rise, f.speed, T(-half_pi)});
 }
 
+/// The fastest launch the hodograph path takes: its rates u v sinh(sigma) reach about v0^2
+/// and the Gauss sums add up to twice the largest rate, so v0^2 needs headroom in T
+/// (a launch at 1e154 m/s, v0^2 = 0.55 of the largest double, gave a rise of -inf at
+/// t = 1e-300 s). sqrt(largest) / 16 leaves a factor 256.
+template <Real T>
+[[nodiscard]] T hodograph_speed_cap() {
+  using std::sqrt;
+  return T(sqrt(boost::math::tools::max_value<T>()) / T(16));
+}
+
 template <Real T>
 [[nodiscard]] status hodograph_check(const T& c, const T& g, const T& v0, const T& theta0) {
   if (!is_finite(c) || !(c > T(0)))
@@ -925,6 +935,8 @@ template <Real T>
   if (!is_finite(g) || !(g > T(0))) return fail(errc::invalid_argument, "gravity must be finite and > 0", g);
   if (!is_finite(v0) || !(v0 > T(0)))
     return fail(errc::invalid_argument, "launch speed must be finite and > 0", v0);
+  if (v0 > hodograph_speed_cap<T>())
+    return fail(errc::invalid_argument, "launch speed is above the hodograph path's cap sqrt(max)/16; speed", v0);
   using std::abs;
   if (!is_finite(theta0) || abs(theta0) > boost::math::constants::half_pi<T>())
     return fail(errc::invalid_argument, "launch inclination must be in [-pi/2, pi/2]", theta0);

@@ -43,7 +43,9 @@ namespace lob {
 /// relative tolerance is then met on landing time and range (measured against a 25-digit
 /// reference in tests/integrate). Fixed-step methods (RK4, semi-implicit Euler) step from the launch
 /// with `fixed_step` and are reproducible bit for bit; their events are located on a
-/// cubic Hermite interpolant between steps. A located crossing or distance is at its
+/// cubic Hermite interpolant between steps, the apex, in the step where the vertical velocity
+/// turns, where the interpolated height stops rising (at or above every step end before
+/// it; its vertical velocity is zero to the order of the method). A located crossing or distance is at its
 /// height or distance within 2^-30 (about 9.3e-10; 1024 ulps for float) of 1 m + that
 /// value + its distance from the launch, else `no_convergence` (the flight moves farther
 /// in one ulp of time: an unstable fixed step whose state grows without bound). No answer
@@ -53,8 +55,9 @@ namespace lob {
 /// Models with `model_traits<M>::quadratic_fast_path` (quadratic drag) answer `apex()`,
 /// `crossing()`, `landing()`, `range()` and (but for a vertical launch) `at()` and
 /// `at_distance()` in still air through the hodograph quadrature
-/// of integrate/hodograph.hpp when the adaptive method is chosen and
-/// `flight_options::use_fast_paths` is set.
+/// of integrate/hodograph.hpp when the adaptive method is chosen,
+/// `flight_options::use_fast_paths` is set and the launch speed is at most
+/// sqrt(largest T) / 16 (`detail::hodograph_speed_cap`).
 template <DragModel M>
 class integrated_flight {
  public:
@@ -368,6 +371,8 @@ class integrated_flight {
         level_ = level_speed > T(0) ? vec3<T>(level / level_speed) : vec3<T>(vec3<T>::Zero());
         v0_ = sqrt(T(launch.velocity.squaredNorm()));
         theta0_ = atan2(climb0_, level_speed);
+        // Faster launches fly on the integrated path (see hodograph_speed_cap).
+        fast_ = v0_ <= detail::hodograph_speed_cap<T>();
         fast_cost_ = detail::hodograph_query_cost(c_, g_, v0_);
       }
     }
@@ -662,7 +667,10 @@ class integrated_flight {
                     "the fixed step is unstable for this drag: the acceleration overflows at t =", t1);
       const detail::hermite_piece<T> curve(t0, h, y, fy, y1, f1);
       if (before_apex && !(T(up_.dot(y1.velocity)) > T(0))) {
-        const auto climb = [&](const T& s) { return T(up_.dot(curve(s).velocity)); };
+        // The apex is the top of the interpolated path, where its height stops rising: with
+        // a step longer than the rise (semi-implicit Euler, 0.98 s steps, 6 m/s up) the zero
+        // of the interpolated velocity lay 1.4 m below the launch.
+        const auto climb = [&](const T& s) { return T(up_.dot(curve.position_slope(s))); };
         const result<T> ta = root(climb, t0, t1, T(up_.dot(y.velocity)), T(up_.dot(y1.velocity)));
         if (!ta) return unexpected<error>(ta.error());
         const detail::phase<T> ya = curve(*ta);
@@ -749,7 +757,10 @@ class integrated_flight {
     if (!p) return unexpected<error>(p.error());
     if (p->time > options_.max_time)
       return fail(errc::time_limit, "the event lies beyond max_time, at t =", p->time);
-    return from_hodograph(*p);
+    const state<T> s = from_hodograph(*p);
+    if (!is_finite(s.position) || !is_finite(s.velocity))
+      return fail(errc::no_convergence, "the state overflows T on the hodograph path at t =", p->time);
+    return s;
   }
   [[nodiscard]] state<T> from_hodograph(const detail::hodograph_point<T>& p) const {
     using std::cos;

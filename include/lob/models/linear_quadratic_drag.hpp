@@ -42,11 +42,14 @@ struct linear_quadratic_drag {
   /// c v^2 + k v = g, written 2 g / (k + sqrt(k^2 + 4 c g)) so that c -> 0 gives g / k
   /// without cancellation; infinite without drag.
   [[nodiscard]] T terminal_speed(const T& g = standard_gravity<T>()) const {
+    using std::hypot;
     using std::sqrt;
-    const T root = sqrt(T(rate * rate + 4 * coefficient * g));
-    const T den = rate + root;
+    // 2 g / (b + sqrt(b^2 + 4 k g)) with everything over 4: b^2 overflowed above 1.3e154 /s
+    // and the speed came out 0 (g / b = 1e-154 m/s at b = 1e155 /s).
+    const T quarter = rate / 4;
+    const T den = quarter + hypot(quarter, T(sqrt(coefficient) * sqrt(g) / 2));
     if (!(den > T(0))) return std::numeric_limits<T>::infinity();
-    return T(2 * g / den);
+    return T(T(g / 2) / den);
   }
 
   /// The model of a sphere of `mass` [kg] and `diameter` [m] in air of `dynamic_viscosity`

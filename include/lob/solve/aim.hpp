@@ -481,6 +481,14 @@ struct shooter {
   };
   mutable std::array<std::optional<trial>, 2> kept{};
   mutable std::size_t slot = 0;
+  // Why trial flights failed, when none reached the target's distance: a search that then
+  // does not converge says so, not that its own iteration failed (unstable fixed steps
+  // under quadratic drag 1e12 /m gave "peak search did not converge").
+  mutable std::optional<error> flight_failure{};
+  mutable bool any_reached = false;
+  [[nodiscard]] error explain(const error& search) const {
+    return !any_reached && flight_failure ? *flight_failure : search;
+  }
 
   [[nodiscard]] probe_result<T> probe(const T& elevation, const T& azimuth, const T& speed) const {
     for (const std::optional<trial>& k : kept)
@@ -556,9 +564,16 @@ struct shooter {
     const auto flight = fly(model, air, shot<T>{launch, p.velocity}, probe_options);
     const T scale = distance + T(1);
     p.miss = T(-scale * T(1000)) * (T(4) + elevation);  // never reached: below, decreasing
-    if (!flight) return p;
+    if (!flight) {
+      if (!flight_failure) flight_failure = flight.error();
+      return p;
+    }
     const result<state<T>> s = flight->at_distance(distance);
-    if (!s) return p;
+    if (!s) {
+      if (!flight_failure && s.error().code() != errc::never_reaches) flight_failure = s.error();
+      return p;
+    }
+    any_reached = true;
     p.reached = true;
     p.at = *s;
     p.miss = T(frame.up.dot(vec3<T>(s->position - target)));
@@ -708,11 +723,11 @@ template <DragModel M, Real T = scalar_of<M>>
   auto neg = [&](const T& e) { return T(-miss(e)); };
   result<std::pair<T, T>> peak =
       brent_min(neg, lo, top, sh.opts.max_iterations, 12, "aim: peak search did not converge");
-  if (!peak) return unexpected<error>(peak.error());
+  if (!peak) return unexpected<error>(sh.explain(peak.error()));
   if (-peak->second < T(0)) {
     peak = brent_min(neg, lo, top, sh.opts.max_iterations, std::numeric_limits<T>::digits / 2,
                      "aim: peak search did not converge");
-    if (!peak) return unexpected<error>(peak.error());
+    if (!peak) return unexpected<error>(sh.explain(peak.error()));
   }
   out.best_elevation = peak->first;
   out.best_miss = -peak->second;
@@ -1327,7 +1342,7 @@ template <DragModel M, Real T = scalar_of<M>>
       const result<std::pair<T, T>> m =
           detail::brent_min(need, T(sight + (top - sight) / T(1 << 20)), top, o.max_iterations,
                             std::numeric_limits<T>::digits / 2, "least speed: Brent search did not converge");
-      if (!m) return unexpected<error>(m.error());
+      if (!m) return unexpected<error>(sh.explain(m.error()));
       return detail::speed_direct(sh, m->first);
     }
   });

@@ -120,7 +120,9 @@ class stepped_flight {
   /// `step_crossing`). Rising: the first step at or above the height, from a launch at or
   /// below it. Falling: the first step after the apex at or below it, from an apex at or
   /// above it. Errors: `invalid_argument` for a non-finite height or without gravity;
-  /// `never_reaches` when the branch does not pass the height; `step_limit` past max_steps.
+  /// `never_reaches` when the branch does not pass the height; `step_limit` past max_steps;
+  /// `no_convergence` when the crossing point (or a range) overflows T, as it can for a
+  /// launch at 1e308 m.
   [[nodiscard]] result<step_crossing<T>> crossing(const T& height, side branch) const {
     if (!is_finite(height)) return fail(errc::invalid_argument, "height must be finite", height);
     const result<std::int64_t> top = apex_step();
@@ -140,7 +142,9 @@ class stepped_flight {
     const result<step_crossing<T>> c = landing(height);
     if (!c) return unexpected<error>(c.error());
     const vec3<T> d = c->point.position - launch_.position;
-    return scaled_norm(vec3<T>(d - up_ * T(up_.dot(d))));
+    const T r = scaled_norm(vec3<T>(d - up_ * T(up_.dot(d))));
+    if (!is_finite(r)) return fail(errc::no_convergence, "the range overflows T at step", c->step);
+    return r;
   }
 
  private:
@@ -150,6 +154,7 @@ class stepped_flight {
     linear_ = rule.quadratic == T(0);
     g_ = scaled_norm(air.gravity);
     if (g_ > T(0)) up_ = vec3<T>(-air.gravity / g_);
+    axis_up_ = (up_.array() != T(0)).count() == 1;
   }
 
   [[nodiscard]] status check_step(std::int64_t n) const {
@@ -316,7 +321,13 @@ class stepped_flight {
     const W s = ha == hb ? W(1) : W(W(W(h) - ha) / W(hb - ha));
     c.fraction = T(s < W(0) ? W(0) : (s > W(1) ? W(1) : s));
     vec3<T> p = a->position + (b->position - a->position) * c.fraction;
-    p += up_ * T(h - T(up_.dot(p)));  // the height is the asked one
+    // The height is the asked one. Along an axis-aligned "up" the level part first, then
+    // h, exactly: p + up (h - up.p) lost h beside steps out at 1e306 m.
+    if (axis_up_)
+      p = vec3<T>(p - up_ * T(up_.dot(p))) + up_ * h;
+    else
+      p += up_ * T(h - T(up_.dot(p)));
+    if (!is_finite(p)) return fail(errc::no_convergence, "the crossing point overflows T at step", n);
     c.point = state<T>{T(T(T(n - 1) + c.fraction) * rule_.dt), p, segment_velocity(*a, *b)};
     return c;
   }
@@ -329,6 +340,7 @@ class stepped_flight {
   T g_{};
   vec3<T> up_ = vec3<T>(T(0), T(0), T(1));
   bool linear_ = true;
+  bool axis_up_ = false;  // "up" along a coordinate axis
   detail::linear_step_form<W> form_{};
   std::optional<linear_flight<W>> extension_;
 };
