@@ -831,3 +831,40 @@ TEST_CASE("a stepped crossing between steps far out is at the asked height") {
   }
   CHECK(found > 0);  // the falling branch passes -50 m (the body is thrown out past it)
 }
+
+namespace {
+// Drag c |v|^p v, as the fuzz harnesses' user model.
+struct power_law_drag {
+  using scalar_type = D;
+  D coefficient = 0;
+  D power = 1;
+  [[nodiscard]] vec3<D> acceleration(const vec3<D>& v) const {
+    const D speed = v.norm();
+    return vec3<D>(-(speed > 0 ? coefficient * std::pow(speed, power) : 0.0) * v);
+  }
+};
+}  // namespace
+
+// fuzz_flight reproducer crash-8e75b59f: drag 0.0496 |v|^1.72 v at 2.5e11 m/s on
+// semi-implicit Euler steps of 1/60 s: the first step ends 1.3e26 m out, the second 1e71 m
+// out. The crossing of -43 m lies within an ulp of time of the first step's end; the
+// located time's state (8.8e39 m out) set the tolerance, which then passed the step end
+// itself, 3.9e23 m off the height. Each candidate now meets the tolerance of its own state.
+TEST_CASE("a crossing within an ulp of an exploding step's end is an error, not a point far off") {
+  lob::medium<D> air;
+  air.gravity = vec3<D>(0, -9.80665, 0);
+  const lob::shot<D> launch{vec3<D>(-8.2745098039215677, 6.8404669260700395, 9.9288929579613949),
+                            vec3<D>(7257507449.7118378, -725984446.21804786, -249682781728.2218)};
+  lob::flight_options<D> o;
+  o.method = lob::stepper::semi_implicit_euler;
+  o.max_steps = 58;
+  const auto f = lob::fly(power_law_drag{0.049610131990539409, 1.7187762264438851}, air, launch, o);
+  REQUIRE(f);
+  const D h = -43.159533073929964;
+  const auto c = f->crossing(h, lob::side::falling);
+  if (c) {
+    CHECK(std::abs(c->position.y() - h) <= 1e-9 * (1 + std::abs(h) + (c->position - launch.position).norm()));
+  } else {
+    CHECK(c.error() == lob::errc::no_convergence);
+  }
+}

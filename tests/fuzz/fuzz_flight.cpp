@@ -133,11 +133,15 @@ void fly_and_query(const M& model, const lob::medium<double>& air, const lob::sh
 
 lob::shot<double> launch_of(fuzz::input& in) {
   lob::shot<double> s;
-  s.position = in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>(in.in(-10, 10), in.in(-10, 10), in.in(-10, 10));
+  s.position = in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>{in.in(-10, 10), in.in(-10, 10), in.in(-10, 10)};
   switch (in.pick(4)) {
     case 0: s.velocity = in.vec(-100, 100); break;
     case 1: s.velocity = lob::vec3<double>(0, 0, in.real()); break;  // vertical
-    default: s.velocity = lob::launch_velocity(in.maybe(0, 300), in.in(-1.6, 1.6), in.in(-3.2, 3.2)); break;
+    default: {
+      const double speed = in.maybe(0, 300), elevation = in.in(-1.6, 1.6), azimuth = in.in(-3.2, 3.2);
+      s.velocity = lob::launch_velocity(speed, elevation, azimuth);
+      break;
+    }
   }
   return s;
 }

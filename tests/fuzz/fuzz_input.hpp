@@ -114,11 +114,14 @@ inline lob::vec3<double> gravity(input& in) {
     case 0: return lob::vec3<double>(0, 0, -9.80665);
     case 1: return lob::vec3<double>(0, -9.80665, 0);  // y up, as engines have it
     case 2: {
-      lob::vec3<double> d(in.in(-1, 1), in.in(-1, 1), in.in(-1, 1));
+      lob::vec3<double> d{in.in(-1, 1), in.in(-1, 1), in.in(-1, 1)};
       return d * in.real();  // any direction, any magnitude
     }
     case 3: return lob::vec3<double>(0, 0, -in.real());
-    case 4: return lob::vec3<double>(in.in(-1, 1), in.in(-1, 1), -1) * in.in(0.1, 30);
+    case 4: {
+      const lob::vec3<double> d{in.in(-1, 1), in.in(-1, 1), -1.0};
+      return d * in.in(0.1, 30);
+    }
     default: return in.vec(-20, 20);
   }
 }
@@ -128,7 +131,7 @@ inline lob::medium<double> medium(input& in) {
   air.gravity = gravity(in);
   switch (in.pick(3)) {
     case 0: break;  // still air
-    case 1: air.wind = lob::vec3<double>(in.in(-30, 30), in.in(-30, 30), in.in(-5, 5)); break;
+    case 1: air.wind = lob::vec3<double>{in.in(-30, 30), in.in(-30, 30), in.in(-5, 5)}; break;
     default: air.wind = in.vec(-50, 50); break;
   }
   return air;

@@ -27,7 +27,8 @@ void check_air(const char* what, const lob::air_properties<double>& a) {
 // Air either from the functions (usually sane) or made up (anything).
 lob::air_properties<double> air_of(fuzz::input& in) {
   if (in.flag()) {
-    const auto a = lob::make_air(in.maybe(200, 330), in.maybe(5e4, 1.1e5), in.maybe(0, 1));
+    const double temperature = in.maybe(200, 330), pressure = in.maybe(5e4, 1.1e5), humidity = in.maybe(0, 1);
+    const auto a = lob::make_air(temperature, pressure, humidity);
     if (a) return *a;
   }
   return lob::air_properties<double>{in.maybe(0.5, 1.5), in.maybe(1e-5, 3e-5), in.maybe(300, 350),
@@ -45,8 +46,8 @@ void check_model_made(const char* what, const lob::result<M>& m) {
 void calibration(fuzz::input& in) {
   const lob::medium<double> air;
   const double truth = in.maybe(1e-4, 0.05);
-  const lob::shot<double> launch{lob::vec3<double>::Zero(),
-                                 lob::launch_velocity(in.maybe(5, 40), in.in(0.1, 1.4), in.in(-1, 1))};
+  const double speed = in.maybe(5, 40), elevation = in.in(0.1, 1.4), azimuth = in.in(-1, 1);
+  const lob::shot<double> launch{lob::vec3<double>::Zero(), lob::launch_velocity(speed, elevation, azimuth)};
   const int n = 2 + in.pick(5);
   std::array<lob::sample<double>, 6> samples{};
   const auto truth_flight = lob::fly(lob::quadratic_drag<double>{0.01}, air, launch);

@@ -54,9 +54,9 @@ template <class M>
 void solve_all(const M& model, const lob::medium<double>& air, const lob::solve_options<double>& o,
                fuzz::input& in) {
   const lob::vec3<double> from =
-      in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>(in.in(-5, 5), in.in(-5, 5), in.in(0, 5));
+      in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>{in.in(-5, 5), in.in(-5, 5), in.in(0, 5)};
   const lob::vec3<double> to =
-      in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>(in.in(-200, 200), in.in(-200, 200), in.in(-20, 40));
+      in.pick(3) == 0 ? in.vec(-1000, 1000) : lob::vec3<double>{in.in(-200, 200), in.in(-200, 200), in.in(-20, 40)};
   const double speed = in.maybe(1, 200);
   char text[400];
   std::snprintf(text, sizeof text, "; from (%.17g, %.17g, %.17g) to (%.17g, %.17g, %.17g), speed %.17g", from.x(),
