@@ -11,6 +11,7 @@
 #include <optional>
 #include <span>
 #include <string_view>
+#include <utility>
 
 #include "lob/lob.hpp"
 
@@ -867,4 +868,55 @@ TEST_CASE("a crossing within an ulp of an exploding step's end is an error, not 
   } else {
     CHECK(c.error() == lob::errc::no_convergence);
   }
+}
+
+// fuzz_flight finding on f12a0d5 (reproducer not kept; rebuilt from its printed values):
+// no drag, 1e154 m/s level on 1/60 s semi-implicit Euler steps. The landing 109.5 m
+// below lies 4.7e154 m out, where the squared distance overflows, and range() returned
+// inf as success. The distance is now a scaled norm: without drag the level motion is
+// uniform, so the range is the level speed times the landing time.
+TEST_CASE("the range of a flight that lands beyond the square root of the largest double") {
+  lob::medium<D> air;
+  air.gravity = vec3<D>(0, 0, -9.80665);
+  const lob::shot<D> launch{vec3<D>(-9.96, 9.94, 9.50), vec3<D>(1e154, 494.599, 4.56e-12)};
+  lob::flight_options<D> o;
+  o.method = lob::stepper::semi_implicit_euler;
+  o.fixed_step = 1.0 / 60;
+  o.max_steps = 502;
+  const auto f = lob::fly(lob::quadratic_drag<D>{0}, air, launch, o);
+  REQUIRE(f);
+  const auto r = f->range(-100);
+  const auto c = f->landing(-100);
+  REQUIRE(r);
+  REQUIRE(c);
+  CHECK(std::isfinite(*r));
+  CHECK(*r == doctest::Approx(1e154 * c->time).epsilon(1e-12));
+  const auto d = f->at_distance(*r / 2);
+  REQUIRE(d);
+  CHECK(d->time == doctest::Approx(c->time / 2).epsilon(1e-9));
+}
+
+// Solver inputs whose squares overflow are refused alike on every model: a speed of
+// 1e155 m/s gave no_convergence ("no lower time bracket") on the closed forms and
+// invalid_argument on the integrated ones; a target 1e160 m away gave no_convergence.
+TEST_CASE("solver speeds and distances whose squares overflow are invalid arguments on every model") {
+  lob::medium<D> air;
+  air.gravity = vec3<D>(0, 0, -9.80665);
+  const auto check = [&](const auto& model) {
+    const auto fast = lob::aim(model, air, lob::aim_request<D>{vec3<D>::Zero(), vec3<D>(1e150, 0, 0), 1e155});
+    REQUIRE_FALSE(fast);
+    CHECK(fast.error().code() == lob::errc::invalid_argument);
+    for (const auto& [from, to] : {std::pair{vec3<D>(0, 0, 0), vec3<D>(1e160, 0, 0)},
+                                   std::pair{vec3<D>(-1e308, 0, 0), vec3<D>(1e308, 0, 0)}}) {
+      const auto far = lob::least_speed(model, air, lob::target_request<D>{from, to});
+      REQUIRE_FALSE(far);
+      CHECK(far.error().code() == lob::errc::invalid_argument);
+      const auto aimed = lob::aim(model, air, lob::aim_request<D>{from, to, 100});
+      REQUIRE_FALSE(aimed);
+      CHECK(aimed.error().code() == lob::errc::invalid_argument);
+    }
+  };
+  check(lob::vacuum<D>{});
+  check(lob::linear_drag<D>{0.1});
+  check(lob::quadratic_drag<D>{0.01});
 }

@@ -205,7 +205,9 @@ class integrated_flight {
     local.launch_.position = vec3<T>::Zero();
     const result<state<T>> s = local.landing(height);
     if (!s) return unexpected<error>(s.error());
-    return level_distance(s->position);
+    const T r = level_distance(s->position);
+    if (!is_finite(r)) return fail(errc::no_convergence, "range overflows", r);
+    return r;
   }
 
   /// The first state whose horizontal distance from the launch point reaches `distance`
@@ -421,14 +423,13 @@ class integrated_flight {
   }
 
   [[nodiscard]] T horizontal_distance(const vec3<T>& position) const {
-    using std::sqrt;
     return level_distance(vec3<T>(position - launch_.position));
   }
   // The horizontal length of a displacement.
   [[nodiscard]] T level_distance(const vec3<T>& d) const {
-    using std::sqrt;
-    const vec3<T> level = d - T(up_.dot(d)) * up_;
-    return sqrt(T(level.squaredNorm()));
+    // Scaled: a fixed-step flight launched at 1e154 m/s lands 1e156 m out, where the
+    // squared distance overflows (range() returned inf as success, fuzz_flight).
+    return scaled_norm(vec3<T>(d - T(up_.dot(d)) * up_));
   }
 
   // Locates the root of f in a piece where f changes sign (fa, fb at its ends) with TOMS

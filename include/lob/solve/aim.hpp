@@ -70,7 +70,14 @@ template <Real T>
   if (!is_finite(launch)) return fail(errc::invalid_argument, "launch point must be finite");
   if (!is_finite(target)) return fail(errc::invalid_argument, "target must be finite");
   if (!is_finite(air.wind)) return fail(errc::invalid_argument, "wind must be finite");
-  const T dist = sqrt(T((target - launch).squaredNorm()));
+  // The solvers form the squared distance (the vacuum aim's quartic, time scales): one
+  // that overflows T, beyond about 1.3e154 m in double, is refused here for every model.
+  const vec3<T> offset = target - launch;
+  const T dist2 = offset.squaredNorm();
+  if (!is_finite(dist2))
+    return fail(errc::invalid_argument, "target is too far: its squared distance overflows T; distance",
+                scaled_norm(offset));
+  const T dist = sqrt(dist2);
   if (!(dist > T(0))) return fail(errc::invalid_argument, "target is at the launch point, distance", dist);
   return {};
 }
