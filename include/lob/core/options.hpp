@@ -21,7 +21,9 @@ enum class stepper {
 /// options point to a pool takes one from it (a hodograph-path query takes
 /// `step_pool::fast_query_cost` at c v0^2/g <= 1, more as its graded quadrature panels
 /// grow with c v0^2/g: `detail::hodograph_query_cost`); a query that finds it empty fails with `step_limit` and sets
-/// `exhausted`. Not synchronised: one pool per thread.
+/// `exhausted`. A solver call given a pool (in `solve_options::flight`) that ends with it
+/// exhausted is `step_limit`, whatever its search concluded. Not synchronised: one pool
+/// per thread.
 struct step_pool {
   std::int64_t left = 0;
   bool exhausted = false;

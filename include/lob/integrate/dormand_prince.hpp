@@ -239,7 +239,13 @@ template <Real T, class Accel>
     k.k7.velocity[i] = g[i] + d7[i];
   }
   for (int i = 0; i < 3; ++i) worst = max(worst, T(abs(T(ev[i] + e7 * d7[i])) * inv_sv[i]));
-  return worst;
+  // max() drops a NaN operand, and an infinite scale makes any error 0: a step whose end
+  // overflows (drag 1e300 /s over a step of 1e-6 s) came back accepted. Zero times the
+  // end is NaN exactly where the end is not finite.
+  T poison(0);
+  for (int i = 0; i < 3; ++i)
+    poison += T(T(0) * y1.position[i]) + T(T(0) * y1.velocity[i]) + T(T(0) * k.k7.velocity[i]);
+  return worst + poison;
 }
 
 /// An acceleration of the form gravity + drag(v - wind) with its parts visible to
@@ -388,10 +394,32 @@ class pi_controller {
   bool rejected_ = false;
 };
 
+/// The Euclidean norm of the six ratios (a.position / sp, a.velocity / sv), without
+/// overflow of their squares (a launch at 1e154 m/s against an absolute tolerance of
+/// 1e-9 has ratios of 1e163); infinite only where a ratio is.
+template <Real T>
+[[nodiscard]] T ratio_norm(const phase<T>& a, const vec3<T>& sp, const vec3<T>& sv) {
+  using std::abs;
+  using std::max;
+  using std::sqrt;
+  T r[6];
+  T largest(0);
+  for (int i = 0; i < 3; ++i) {
+    r[i] = a.position[i] / sp[i];
+    r[i + 3] = a.velocity[i] / sv[i];
+  }
+  for (const T& x : r) largest = max(largest, T(abs(x)));
+  if (!(largest > T(0)) || !is_finite(largest)) return largest;
+  T sum(0);
+  for (const T& x : r) sum += T(x / largest) * T(x / largest);
+  return largest * T(sqrt(sum));
+}
+
 /// Hairer's starting step (Hairer, Norsett & Wanner, "Solving ODEs I", sec. II.4,
 /// "Starting step size"): an explicit Euler probe estimates the second derivative, and
 /// the step makes the local error of a 5th-order method about the tolerance. Costs one
-/// evaluation of f. Never more than `h_max`.
+/// evaluation of f. Never more than `h_max`; always positive (where the estimate is not,
+/// 1e-6 s, which the step control then shrinks).
 template <Real T, class Accel>
 [[nodiscard]] T dp5_initial_step(const Accel& accel, const phase<T>& y0, const phase<T>& f0, const T& rtol,
                                  const T& atol, const T& h_max) {
@@ -399,34 +427,45 @@ template <Real T, class Accel>
   using std::max;
   using std::min;
   using std::pow;
-  using std::sqrt;
-  T dnf(0), dny(0);
+  vec3<T> sp, sv;
   for (int i = 0; i < 3; ++i) {
-    const T sp = atol + rtol * T(abs(y0.position[i]));
-    const T sv = atol + rtol * T(abs(y0.velocity[i]));
-    dnf += T(f0.position[i] / sp) * T(f0.position[i] / sp) + T(f0.velocity[i] / sv) * T(f0.velocity[i] / sv);
-    dny += T(y0.position[i] / sp) * T(y0.position[i] / sp) + T(y0.velocity[i] / sv) * T(y0.velocity[i] / sv);
+    sp[i] = atol + rtol * T(abs(y0.position[i]));
+    sv[i] = atol + rtol * T(abs(y0.velocity[i]));
   }
-  const T tiny = T(1) / T(10000000000LL);
-  T h = (dnf <= tiny || dny <= tiny) ? T(T(1) / T(1000000)) : T(sqrt(T(dny / dnf)) / T(100));
+  const T ny = ratio_norm(y0, sp, sv);
+  const T tiny = T(1) / T(100000);
+  const T fallback = T(1) / T(1000000);
+  // ny / nf / 100 as the norm of f0 over the scales times ny: under a drag rate of 1e300
+  // /s nf alone overflows, and the step (1e-303 s) must stay positive and small.
+  vec3<T> spy = sp, svy = sv;
+  if (ny > tiny) {
+    spy *= ny;
+    svy *= ny;
+  }
+  const T nf = ratio_norm(f0, sp, sv);
+  const T nf_over_ny = ratio_norm(f0, spy, svy);
+  T h = (nf <= tiny || ny <= tiny) ? fallback : T(T(1) / T(100) / nf_over_ny);
+  if (!(h > T(0)) || !is_finite(h)) h = fallback;
   h = min(h, h_max);
   phase<T> y1;
   y1.position = y0.position + h * f0.position;
   y1.velocity = y0.velocity + h * f0.velocity;
   const phase<T> f1 = derivative(accel, y1);
-  T der2(0);
-  for (int i = 0; i < 3; ++i) {
-    const T sp = atol + rtol * T(abs(y0.position[i]));
-    const T sv = atol + rtol * T(abs(y0.velocity[i]));
-    const T dp = (f1.position[i] - f0.position[i]) / sp;
-    const T dv = (f1.velocity[i] - f0.velocity[i]) / sv;
-    der2 += dp * dp + dv * dv;
-  }
-  der2 = sqrt(der2) / h;
-  const T der12 = max(der2, T(sqrt(dnf)));
-  const T h1 = der12 <= T(1) / T(1000000000000000LL) ? max(T(T(1) / T(1000000)), T(h / T(1000)))
-                                                      : T(pow(T(T(1) / T(100) / der12), T(1) / T(5)));
-  return min(T(min(T(100 * h), h1)), h_max);
+  phase<T> change;
+  change.position = f1.position - f0.position;
+  change.velocity = f1.velocity - f0.velocity;
+  const T nd = ratio_norm(change, sp, sv);
+  // (1/100 / max(nd / h, nf))^(1/5), each root taken apart so that nd / h may exceed T.
+  const T fifth = T(1) / T(5);
+  const T hundredth = T(1) / T(100);
+  T h1;
+  if (!(nd / h > T(1) / T(1000000000000000LL)) && !(nf > T(1) / T(1000000000000000LL)))
+    h1 = max(fallback, T(h / T(1000)));
+  else
+    h1 = min(T(T(pow(h, fifth)) * T(pow(T(hundredth / nd), fifth))), T(pow(T(hundredth / nf), fifth)));
+  T out = min(T(100 * h), h1);
+  if (!(out > T(0)) || !is_finite(out)) out = h;
+  return min(out, h_max);
 }
 
 }  // namespace lob::detail

@@ -571,6 +571,8 @@ class integrated_flight {
         continue;
       }
       const T t1 = t + h;
+      if (!(t1 > t))  // a step that does not advance time would be accepted forever
+        return fail(errc::no_convergence, "step size fell below the resolution of time at t =", t);
       const T h_next = control.next(h, err, true);
       if (before_apex && !(T(up_.dot(y1.velocity)) > T(0))) {
         // Stop at the apex and restart there: locate it on the dense output, then take

@@ -572,7 +572,9 @@ struct shooter {
     const T scale = distance + T(1);
     p.miss = T(-scale * T(1000)) * (T(4) + elevation);  // never reached: below, decreasing
     if (!flight) {
-      if (!flight_failure) flight_failure = flight.error();
+      // fly() refusing a speed the search chose (its drag overflows T) tells nothing of why
+      // the target is not reached: such speeds are simply beyond T.
+      if (!flight_failure && flight.error().code() != errc::invalid_argument) flight_failure = flight.error();
       return p;
     }
     const result<state<T>> s = flight->at_distance(distance);
@@ -1193,6 +1195,10 @@ template <DragModel M, Real T = scalar_of<M>>
 /// of the problem's size) of the target when flown forward, or, where one ulp of elevation
 /// moves the path farther than that (steep lofted shots onto near targets, extreme drag),
 /// within 4 ulp of elevation times that sensitivity; else the call is `no_convergence`.
+/// The arrival state is the flight's state at `time_of_flight`, a time held in T: where
+/// the body moves farther than the tolerance in one ulp of that time (a fixed-step flight
+/// that explodes to 1e6 m/s), the path passes within the tolerance between the arrival
+/// and the state one ulp of time before or after it, and the arrival may be farther.
 ///
 /// Errors: `invalid_argument` (non-finite input, speed <= 0, target at the launch point,
 /// no gravity); `out_of_reach` when no direction reaches, with `detail_value()` the
@@ -1251,8 +1257,8 @@ template <DragModel M, Real T = scalar_of<M>>
   T hi = lo * 2;
   T f_hi = miss(hi);
   for (int i = 0; !(f_hi > T(0)); ++i) {
-    if (i > 200 || !is_finite(hi))
-      return fail(errc::out_of_reach, "no speed makes this elevation reach the target");
+    if (i > 200 || !is_finite(hi))  // unless trial flights failed: then that is why
+      return unexpected<error>(sh.explain(error(errc::out_of_reach, "no speed makes this elevation reach the target")));
     lo = hi;
     f_lo = f_hi;
     hi *= 2;

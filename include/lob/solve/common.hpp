@@ -148,7 +148,14 @@ template <Real T, class Solve>
   using R = decltype(solve(o));
   if (o.max_total_steps < 1)
     return R(fail(errc::invalid_argument, "max_total_steps must be >= 1", o.max_total_steps));
-  if (o.flight.shared_steps) return solve(o);
+  if (o.flight.shared_steps) {
+    // A caller's pool: a call that drew it dry says so, whatever its search concluded
+    // from the trials the budget cut short (it said out_of_reach).
+    R r = solve(o);
+    if (o.flight.shared_steps->exhausted)
+      return R(fail(errc::step_limit, "the solver used its whole step budget (the caller's step_pool)"));
+    return r;
+  }
   step_pool pool{o.max_total_steps};
   solve_options<T> budgeted = o;
   budgeted.flight.shared_steps = &pool;
