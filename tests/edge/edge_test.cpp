@@ -963,3 +963,53 @@ TEST_CASE("a launch near the square root of the largest double takes steps of po
   REQUIRE(later);
   CHECK(std::isfinite(lob::speed(*later)));
 }
+
+// A linear drag rate at the top of the range in a wind: gravity + k wind, which every
+// closed form carries, overflows T, and at_distance returned a state of inf at t = 0
+// (fuzz_flight crash-f190bbb5).
+TEST_CASE("a linear drag rate whose product with the wind overflows is refused by fly()") {
+  lob::medium<D> windy{};
+  windy.gravity = vec3<D>(0, -9.80665, 0);
+  windy.wind = vec3<D>(9.764705882352942, 9.764705882352942, 1.6274509803921573);
+  const lob::shot<D> launch{vec3<D>(3.25, 3.25, 3.25), vec3<D>(0, 0, -77.931)};
+  const auto f = lob::fly(lob::linear_drag<D>{largest}, windy, launch);
+  REQUIRE_FALSE(f);
+  CHECK(f.error() == lob::errc::invalid_argument);
+  // The same rate in still air is representable all the way (terminal speed g / k).
+  const auto still = lob::fly(lob::linear_drag<D>{largest}, lob::medium<D>{}, launch);
+  REQUIRE(still);
+  const auto s = still->at_distance(1e-300);
+  if (s) CHECK(std::isfinite(lob::speed(*s)));
+}
+
+// A lofted aim at 88 degrees on flown trials (quadratic drag 1e-12, fast paths off): its
+// arrival lies 2.1e-11 m above the target against a tolerance of 3.2e-12 m (fuzz_solve
+// crash-a97971fb), while the path passes 6e-13 m from it: the steep descent multiplies
+// the pass by 1 / cos(88 deg). The promise is the closest pass, measured here on the
+// flight's own state where its tangent at the arrival comes nearest to the target.
+TEST_CASE("an aim on flown trials keeps the pass tolerance in a steep descent") {
+  lob::medium<D> air{};
+  air.gravity = vec3<D>(0, -9.80665, 0);
+  lob::solve_options<D> o;
+  o.flight.max_steps = 118;
+  o.flight.use_fast_paths = false;
+  o.max_iterations = 8;
+  o.max_azimuth_iterations = 1;
+  const vec3<D> from(1.0833142595559622, 2.3398947127489125, 4.5098039215686274);
+  const vec3<D> to(160.78431372549022, 160.78431372549022, 34.117647058823529);
+  const lob::quadratic_drag<D> m{1.0360509041642052e-12};
+  const auto r = lob::aim(m, air, {from, to, 164.37221332112611}, o);
+  REQUIRE(r);
+  const D tol = 64 * std::numeric_limits<D>::epsilon() * ((to - from).norm() + 1);
+  for (const auto& s : {r->flat, r->lofted}) {
+    if (!s) continue;
+    const auto f = lob::fly(m, air, lob::shot<D>{from, s->velocity}, o.flight);
+    REQUIRE(f);
+    const auto at = f->at(s->time_of_flight);
+    REQUIRE(at);
+    const D dt = (to - at->position).dot(at->velocity) / at->velocity.squaredNorm();
+    const auto nearest = f->at(s->time_of_flight + dt);
+    REQUIRE(nearest);
+    CHECK((nearest->position - to).norm() <= tol);
+  }
+}

@@ -63,6 +63,10 @@ class linear_flight {
     if (const status ok = detail::check_air_and_launch(air, launch); !ok)
       return unexpected<error>(ok.error());
     if (!(max_time > T(0))) return fail(errc::invalid_argument, "max_time must be > 0", max_time);
+    // The closed forms carry gravity + k wind: a rate of 1.8e308 /s in a wind of 10 m/s
+    // gave an infinite pull and a state of inf at t = 0 (fuzz_flight crash-f190bbb5).
+    if (!is_finite(vec3<T>(air.gravity + rate * air.wind)))
+      return fail(errc::invalid_argument, "drag rate times the wind overflows T; rate", rate);
     return linear_flight(rate, air, launch, max_time);
   }
 

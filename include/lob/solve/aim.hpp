@@ -1195,10 +1195,17 @@ template <DragModel M, Real T = scalar_of<M>>
 /// of the problem's size) of the target when flown forward, or, where one ulp of elevation
 /// moves the path farther than that (steep lofted shots onto near targets, extreme drag),
 /// within 4 ulp of elevation times that sensitivity; else the call is `no_convergence`.
-/// The arrival state is the flight's state at `time_of_flight`, a time held in T: where
-/// the body moves farther than the tolerance in one ulp of that time (a fixed-step flight
-/// that explodes to 1e6 m/s), the path passes within the tolerance between the arrival
-/// and the state one ulp of time before or after it, and the arrival may be farther.
+/// On flown trials (integrated models off the hodograph path) the elevation is the root
+/// of the flights' own height miss, found to the tolerance or to a bracket of a few ulp:
+/// where the integrated path jumps between neighbouring elevations (its step sequence
+/// changes; of order the flight's tolerance times the distance) the pass is within that
+/// jump instead. The promise is on the path's closest pass. The arrival state is the
+/// flight's state at `time_of_flight`, where it reaches the target's horizontal distance:
+/// in a steep descent it lies above or below the target by the pass over the cosine of the
+/// descent angle (88 degrees: 30 times), and where the body moves farther than the
+/// tolerance in one ulp of that time (a fixed-step flight that explodes to 1e6 m/s), the
+/// path passes within the tolerance between the arrival and the state one ulp of time
+/// before or after it.
 ///
 /// Errors: `invalid_argument` (non-finite input, speed <= 0, target at the launch point,
 /// no gravity); `out_of_reach` when no direction reaches, with `detail_value()` the
